@@ -1,0 +1,117 @@
+package api
+
+import "clearkit/core"
+
+// CompareRequest asks for both flow arrangements at one operating point.
+type CompareRequest struct {
+	QB  Number `json:"qb"`  // required, mL/min
+	QD  Number `json:"qd"`  // required, mL/min
+	KoA Number `json:"koa"` // required, mL/min
+	CBi Number `json:"cbi"` // optional, default 1
+	CDi Number `json:"cdi"` // optional, default 0
+	// Sweep, when present (even {}), adds the chart series.
+	Sweep *SweepRequest `json:"sweep"`
+}
+
+// SweepRequest sets the chart series; every member is optional.
+type SweepRequest struct {
+	Points Number   `json:"points"`
+	QB     []Number `json:"qb"`  // [minimum, maximum], mL/min
+	QD     []Number `json:"qd"`  // [minimum, maximum], mL/min
+	KoA    []Number `json:"koa"` // [minimum, maximum], mL/min
+}
+
+// CompareResponse is a successful compare.
+type CompareResponse struct {
+	OK    bool           `json:"ok"`
+	Input core.Operating `json:"input"` // the values used, defaults filled in
+	core.Comparison
+	Sweeps *core.Sweeps `json:"sweeps,omitempty"`
+}
+
+// Compare answers a CompareRequest.
+func Compare(request []byte) []byte {
+	var req CompareRequest
+	if err := decode(request, &req); err != nil {
+		return failure(err)
+	}
+	op, err := operating(req.QB, req.QD, req.KoA, req.CBi, req.CDi)
+	if err != nil {
+		return failure(err)
+	}
+	c, err := core.Compare(op)
+	if err != nil {
+		return failure(err)
+	}
+	resp := CompareResponse{OK: true, Input: op, Comparison: c}
+	if req.Sweep != nil {
+		spec, err := req.Sweep.spec()
+		if err != nil {
+			return failure(err)
+		}
+		s, err := core.Sweep(op, spec)
+		if err != nil {
+			return failure(err)
+		}
+		resp.Sweeps = &s
+	}
+	return respond(resp, nil)
+}
+
+// operating reads the fields of an operating point.
+func operating(qb, qd, koa, cbi, cdi Number) (op core.Operating, err error) {
+	if op.QB, err = qb.Required("qb"); err != nil {
+		return op, err
+	}
+	if op.QD, err = qd.Required("qd"); err != nil {
+		return op, err
+	}
+	if op.KoA, err = koa.Required("koa"); err != nil {
+		return op, err
+	}
+	if op.CBi, err = cbi.Optional("cbi", 1); err != nil {
+		return op, err
+	}
+	if op.CDi, err = cdi.Optional("cdi", 0); err != nil {
+		return op, err
+	}
+	return op, op.Validate()
+}
+
+func (s *SweepRequest) spec() (spec core.SweepSpec, err error) {
+	points, err := s.Points.Optional("sweep.points", core.DefaultSweepPoints)
+	if err != nil {
+		return spec, err
+	}
+	if points != float64(int(points)) {
+		return spec, fieldErr("sweep.points", "must be a whole number")
+	}
+	spec.Points = int(points)
+	if spec.QB, err = rangeOf("sweep.qb", s.QB); err != nil {
+		return spec, err
+	}
+	if spec.QD, err = rangeOf("sweep.qd", s.QD); err != nil {
+		return spec, err
+	}
+	spec.KoA, err = rangeOf("sweep.koa", s.KoA)
+	return spec, err
+}
+
+// rangeOf reads an optional [minimum, maximum] pair.
+func rangeOf(field string, pair []Number) (*core.Range, error) {
+	if pair == nil {
+		return nil, nil
+	}
+	if len(pair) != 2 {
+		return nil, fieldErr(field, "must be [minimum, maximum]")
+	}
+	lo, err := pair[0].Required(field)
+	if err != nil {
+		return nil, err
+	}
+	hi, err := pair[1].Required(field)
+	if err != nil {
+		return nil, err
+	}
+	return &core.Range{Min: lo, Max: hi}, nil
+}

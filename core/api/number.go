@@ -1,0 +1,99 @@
+package api
+
+import (
+	"math"
+	"regexp"
+	"strconv"
+	"strings"
+
+	"github.com/goccy/go-json"
+)
+
+// Number is a numeric request field. It keeps the raw JSON value and is
+// read, with its field name, by Required or Optional, so that every
+// decoding problem is reported against the field that caused it.
+type Number struct{ raw []byte }
+
+// UnmarshalJSON keeps the raw value; it never fails.
+func (n *Number) UnmarshalJSON(b []byte) error {
+	n.raw = append(n.raw[:0], b...)
+	return nil
+}
+
+// N returns a Number holding v, for building requests in Go.
+func N(v float64) Number { return Number{raw: strconv.AppendFloat(nil, v, 'g', -1, 64)} }
+
+// decimal is the accepted form of a number written in a string: the JSON
+// number grammar, with a leading '+', a leading or trailing point and a
+// decimal comma tolerated. "NaN", "Inf" and hexadecimal are not numbers here.
+var decimal = regexp.MustCompile(`^[+-]?([0-9]+([.,][0-9]*)?|[.,][0-9]+)([eE][+-]?[0-9]+)?$`)
+
+// value returns the number and whether it was given at all.
+func (n Number) value(field string) (float64, bool, error) {
+	raw := strings.TrimSpace(string(n.raw))
+	if raw == "" || raw == "null" {
+		return 0, false, nil
+	}
+	switch c := raw[0]; {
+	case c == '"':
+		var s string
+		if err := json.Unmarshal([]byte(raw), &s); err != nil {
+			return 0, false, fieldErr(field, "must be a number")
+		}
+		s = strings.TrimSpace(s)
+		if s == "" {
+			return 0, false, nil
+		}
+		if !decimal.MatchString(s) {
+			return 0, false, fieldErr(field, "must be a number (got "+strconv.Quote(clip(s))+")")
+		}
+		raw = strings.Replace(s, ",", ".", 1)
+	case c == '-' || (c >= '0' && c <= '9'):
+	default:
+		return 0, false, fieldErr(field, "must be a number (got "+kind(c)+")")
+	}
+	v, err := strconv.ParseFloat(raw, 64)
+	if err != nil || math.IsInf(v, 0) || math.IsNaN(v) {
+		return 0, false, fieldErr(field, "must be a finite number (got "+strconv.Quote(clip(raw))+")")
+	}
+	return v, true, nil
+}
+
+// Required returns the number in field, or an error if it is absent.
+func (n Number) Required(field string) (float64, error) {
+	v, ok, err := n.value(field)
+	if err == nil && !ok {
+		err = fieldErr(field, "is required")
+	}
+	return v, err
+}
+
+// Optional returns the number in field, or def if it is absent.
+func (n Number) Optional(field string, def float64) (float64, error) {
+	v, ok, err := n.value(field)
+	if !ok {
+		v = def
+	}
+	return v, err
+}
+
+// kind names the JSON type that starts with c, for error messages.
+func kind(c byte) string {
+	switch c {
+	case '{':
+		return "an object"
+	case '[':
+		return "a list"
+	case 't', 'f':
+		return "true or false"
+	}
+	return "something else"
+}
+
+// clip shortens s for an error message.
+func clip(s string) string {
+	if len(s) > 24 {
+		return s[:24] + "..."
+	}
+	return s
+}

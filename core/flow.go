@@ -1,0 +1,104 @@
+package core
+
+import "math"
+
+// Arrangement is the relative direction of blood and dialysate flow.
+type Arrangement int
+
+const (
+	// Countercurrent: dialysate flows against the blood (the usual connection).
+	Countercurrent Arrangement = iota
+	// Cocurrent: dialysate flows with the blood (parallel flow, as when the
+	// dialysate lines are connected the wrong way round).
+	Cocurrent
+)
+
+// Arrangements lists both arrangements, counter-current first.
+var Arrangements = [...]Arrangement{Countercurrent, Cocurrent}
+
+// String returns the API name of the arrangement.
+func (a Arrangement) String() string {
+	if a == Cocurrent {
+		return "cocurrent"
+	}
+	return "countercurrent"
+}
+
+// ParseArrangement reads an API name ("countercurrent" or "cocurrent").
+func ParseArrangement(field, s string) (Arrangement, error) {
+	switch s {
+	case "countercurrent":
+		return Countercurrent, nil
+	case "cocurrent":
+		return Cocurrent, nil
+	}
+	return 0, fieldErrorf(field, "must be \"countercurrent\" or \"cocurrent\" (got %q)", s)
+}
+
+// capacities returns Cmin, Cmax and 1 - Cr = (Cmax - Cmin)/Cmax, the last
+// computed from the difference of the flows so that it keeps full relative
+// accuracy when QB and QD are nearly equal.
+func capacities(qb, qd float64) (cmin, cmax, oneMinusCr float64) {
+	cmin, cmax = math.Min(qb, qd), math.Max(qb, qd)
+	return cmin, cmax, (cmax - cmin) / cmax
+}
+
+// Effectiveness returns the fraction eps of the largest possible transfer
+// achieved by the arrangement, so that dialysance D = eps * min(QB, QD).
+//
+// Counter-current: eps = (1 - e^(-NTU(1-Cr))) / (1 - Cr e^(-NTU(1-Cr))),
+// co-current: eps = (1 - e^(-NTU(1+Cr))) / (1 + Cr), with NTU = KoA/Cmin and
+// Cr = Cmin/Cmax (effectiveness-NTU relations, Incropera & DeWitt ch. 11;
+// Shah & Sekulic 2003). Inputs are assumed valid (positive flows, KoA >= 0).
+//
+// Special cases are:
+//
+//	Effectiveness(a, qb, qd, 0) = 0
+//	Effectiveness(Countercurrent, q, q, koa) = NTU/(1+NTU)  (Cr = 1)
+//	Effectiveness(Countercurrent, qb, qd, +Inf) = 1
+//	Effectiveness(Cocurrent, qb, qd, +Inf) = 1/(1+Cr)
+func Effectiveness(a Arrangement, qb, qd, koa float64) float64 {
+	cmin, cmax, oneMinusCr := capacities(qb, qd)
+	ntu := koa / cmin
+	cr := cmin / cmax
+	if a == Cocurrent {
+		if math.IsInf(ntu, 1) {
+			return 1 / (1 + cr)
+		}
+		return -math.Expm1(-ntu*(1+cr)) / (1 + cr)
+	}
+	if math.IsInf(ntu, 1) {
+		return 1
+	}
+	// With x = NTU(1-Cr) and phi(x) = (1 - e^-x)/x the counter-current
+	// relation becomes eps = NTU phi / (1 + Cr NTU phi), which has no 0/0
+	// at Cr = 1 and reduces there to NTU/(1+NTU).
+	t := ntu * phi(ntu*oneMinusCr)
+	return t / (1 + cr*t)
+}
+
+// phi returns (1 - e^-x)/x for x >= 0, with phi(0) = 1.
+func phi(x float64) float64 {
+	if x == 0 {
+		return 1
+	}
+	return -math.Expm1(-x) / x
+}
+
+// Dialysance returns D = eps * min(QB, QD) in mL/min: the solute transfer
+// rate per unit of inlet concentration difference (CBi - CDi).
+func Dialysance(a Arrangement, qb, qd, koa float64) float64 {
+	return Effectiveness(a, qb, qd, koa) * math.Min(qb, qd)
+}
+
+// Ceiling returns the dialysance the arrangement approaches as KoA grows
+// without bound: min(QB, QD) counter-current, QB QD/(QB+QD) co-current.
+// No filter can reach or pass it at these flows.
+func Ceiling(a Arrangement, qb, qd float64) float64 {
+	if a == Cocurrent {
+		// QB QD/(QB+QD) written as Cmin/(1+Cr) to avoid overflow of QB*QD.
+		cmin, cmax, _ := capacities(qb, qd)
+		return cmin / (1 + cmin/cmax)
+	}
+	return math.Min(qb, qd)
+}

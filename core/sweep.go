@@ -1,0 +1,113 @@
+package core
+
+import "math"
+
+// Sweep points: how many a series may have.
+const (
+	DefaultSweepPoints = 101
+	MinSweepPoints     = 2
+	MaxSweepPoints     = 1001
+)
+
+// Range is a closed interval [Min, Max] swept in equal steps.
+type Range struct{ Min, Max float64 }
+
+// SweepSpec says which ranges to sweep. A nil range takes its default:
+// QB 25 to max(600, 2 QB), QD 50 to max(1000, 2 QD), KoA 0 to
+// max(2000, 2 KoA), all mL/min, which cover routine machines (QB 200-500,
+// QD 300-800 mL/min; common practice) with the operating point inside.
+type SweepSpec struct {
+	Points      int // 0 means DefaultSweepPoints
+	QB, QD, KoA *Range
+}
+
+// Series is clearance along one swept variable for both arrangements,
+// with each arrangement's clearance ceiling at every point.
+type Series struct {
+	X                     []float64 `json:"x"`
+	Countercurrent        []float64 `json:"countercurrent"`
+	Cocurrent             []float64 `json:"cocurrent"`
+	CountercurrentCeiling []float64 `json:"countercurrent_ceiling"`
+	CocurrentCeiling      []float64 `json:"cocurrent_ceiling"`
+}
+
+// Sweeps holds clearance against QB, against QD and against KoA, each with
+// the other two variables held at the operating point.
+type Sweeps struct {
+	QB  Series `json:"qb"`
+	QD  Series `json:"qd"`
+	KoA Series `json:"koa"`
+}
+
+// Sweep computes the chart series around op.
+func Sweep(op Operating, spec SweepSpec) (Sweeps, error) {
+	if err := op.Validate(); err != nil {
+		return Sweeps{}, err
+	}
+	n := spec.Points
+	if n == 0 {
+		n = DefaultSweepPoints
+	}
+	if n < MinSweepPoints || n > MaxSweepPoints {
+		return Sweeps{}, fieldErrorf("sweep.points", "must be a whole number from %d to %d (got %d)", MinSweepPoints, MaxSweepPoints, n)
+	}
+	qb, err := sweepRange("sweep.qb", spec.QB, Range{25, math.Max(600, 2*op.QB)}, checkFlow)
+	if err != nil {
+		return Sweeps{}, err
+	}
+	qd, err := sweepRange("sweep.qd", spec.QD, Range{50, math.Max(1000, 2*op.QD)}, checkFlow)
+	if err != nil {
+		return Sweeps{}, err
+	}
+	koa, err := sweepRange("sweep.koa", spec.KoA, Range{0, math.Max(2000, 2*op.KoA)}, checkKoA)
+	if err != nil {
+		return Sweeps{}, err
+	}
+	return Sweeps{
+		QB:  series(n, qb, func(x float64) Operating { o := op; o.QB = x; return o }),
+		QD:  series(n, qd, func(x float64) Operating { o := op; o.QD = x; return o }),
+		KoA: series(n, koa, func(x float64) Operating { o := op; o.KoA = x; return o }),
+	}, nil
+}
+
+func sweepRange(field string, r *Range, def Range, check func(string, float64) error) (Range, error) {
+	if r == nil {
+		return def, nil
+	}
+	if err := check(field, r.Min); err != nil {
+		return Range{}, err
+	}
+	if err := check(field, r.Max); err != nil {
+		return Range{}, err
+	}
+	if !(r.Min < r.Max) {
+		return Range{}, fieldErrorf(field, "minimum must be below maximum (got %g to %g)", r.Min, r.Max)
+	}
+	return *r, nil
+}
+
+// series evaluates both arrangements at n equally spaced points of r.
+func series(n int, r Range, at func(float64) Operating) Series {
+	s := Series{
+		X:                     make([]float64, n),
+		Countercurrent:        make([]float64, n),
+		Cocurrent:             make([]float64, n),
+		CountercurrentCeiling: make([]float64, n),
+		CocurrentCeiling:      make([]float64, n),
+	}
+	step := (r.Max - r.Min) / float64(n-1)
+	for i := range n {
+		x := r.Min + float64(i)*step
+		if i == n-1 {
+			x = r.Max
+		}
+		op := at(x)
+		f := op.drivingFraction()
+		s.X[i] = x
+		s.Countercurrent[i] = Dialysance(Countercurrent, op.QB, op.QD, op.KoA) * f
+		s.Cocurrent[i] = Dialysance(Cocurrent, op.QB, op.QD, op.KoA) * f
+		s.CountercurrentCeiling[i] = Ceiling(Countercurrent, op.QB, op.QD) * f
+		s.CocurrentCeiling[i] = Ceiling(Cocurrent, op.QB, op.QD) * f
+	}
+	return s
+}
