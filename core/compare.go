@@ -1,5 +1,10 @@
 package core
 
+import "math"
+
+// minNormal is the smallest normal float64, 2^-1022.
+const minNormal = 0x1p-1022
+
 // Operating is one operating point of a dialyzer: the flows, the filter's
 // KoA and the inlet concentrations.
 type Operating struct {
@@ -77,8 +82,11 @@ func evaluate(a Arrangement, op Operating) Performance {
 	}
 	p.ExtractionRatio = p.Clearance / op.QB
 	p.ClearanceCeiling = p.DialysanceCeiling * op.drivingFraction()
-	if op.KoA > 0 {
-		p.LogMeanDifference = w / op.KoA
+	// W/KoA is taken as (CBi - CDi) (D/KoA) so that a small W cannot
+	// underflow. Below the smallest normal KoA or NTU, D/KoA would be 0/0 or
+	// lose precision, and equals its KoA -> 0 limit, 1, to double precision.
+	if ntu := op.KoA / math.Min(op.QB, op.QD); op.KoA >= minNormal && ntu >= minNormal {
+		p.LogMeanDifference = (op.CBi - op.CDi) * (d / op.KoA)
 	} else {
 		p.LogMeanDifference = op.CBi - op.CDi
 	}

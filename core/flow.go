@@ -72,9 +72,10 @@ func Effectiveness(a Arrangement, qb, qd, koa float64) float64 {
 	}
 	// With x = NTU(1-Cr) and phi(x) = (1 - e^-x)/x the counter-current
 	// relation becomes eps = NTU phi / (1 + Cr NTU phi), which has no 0/0
-	// at Cr = 1 and reduces there to NTU/(1+NTU).
+	// at Cr = 1 and reduces there to NTU/(1+NTU). Near saturation the
+	// quotient can round to just above 1; the ceiling is exact.
 	t := ntu * phi(ntu*oneMinusCr)
-	return t / (1 + cr*t)
+	return math.Min(1, t/(1+cr*t))
 }
 
 // phi returns (1 - e^-x)/x for x >= 0, with phi(0) = 1.
@@ -95,10 +96,8 @@ func Dialysance(a Arrangement, qb, qd, koa float64) float64 {
 // without bound: min(QB, QD) counter-current, QB QD/(QB+QD) co-current.
 // No filter can reach or pass it at these flows.
 func Ceiling(a Arrangement, qb, qd float64) float64 {
-	if a == Cocurrent {
-		// QB QD/(QB+QD) written as Cmin/(1+Cr) to avoid overflow of QB*QD.
-		cmin, cmax, _ := capacities(qb, qd)
-		return cmin / (1 + cmin/cmax)
-	}
-	return math.Min(qb, qd)
+	// Computed as Dialysance at KoA = +Inf, that is (1/(1+Cr)) Cmin
+	// co-current (QB QD/(QB+QD) without overflow of QB*QD), so that the
+	// same roundings apply and Dialysance never exceeds it at finite KoA.
+	return Dialysance(a, qb, qd, math.Inf(1))
 }

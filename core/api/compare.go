@@ -1,6 +1,10 @@
 package api
 
-import "clearkit/core"
+import (
+	"fmt"
+
+	"clearkit/core"
+)
 
 // CompareRequest asks for both flow arrangements at one operating point.
 type CompareRequest struct {
@@ -82,6 +86,12 @@ func (s *SweepRequest) spec() (spec core.SweepSpec, err error) {
 	points, err := s.Points.Optional("sweep.points", core.DefaultSweepPoints)
 	if err != nil {
 		return spec, err
+	}
+	// The range is checked here, before the conversion to int: an explicit
+	// 0 would read as "default" in core.SweepSpec, and a huge value does not
+	// fit an int.
+	if points < core.MinSweepPoints || points > core.MaxSweepPoints {
+		return spec, fieldErr("sweep.points", fmt.Sprintf("must be a whole number from %d to %d (got %g)", core.MinSweepPoints, core.MaxSweepPoints, points))
 	}
 	if points != float64(int(points)) {
 		return spec, fieldErr("sweep.points", "must be a whole number")

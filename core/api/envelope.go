@@ -54,7 +54,9 @@ func decode(request []byte, v any) error {
 		}
 		return fieldErr("", "request is not valid JSON: "+strings.TrimPrefix(msg, "json: "))
 	}
-	if d.More() {
+	// Decoder.More reports false before a stray '}' or ']', so look at
+	// everything after the object instead.
+	if len(bytes.TrimSpace(request[d.InputOffset():])) != 0 {
 		return fieldErr("", "request has data after the JSON object")
 	}
 	return nil

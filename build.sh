@@ -1,0 +1,88 @@
+#!/usr/bin/env bash
+# ClearKit build, serve and test.
+#   ./build.sh          build the page into site/ (clearkit.wasm, wasm_exec.js)
+#   ./build.sh serve    build, then serve site/ on http://127.0.0.1:8080
+#   ./build.sh test     build, then run every test (installs Chromium if missing)
+#   ./build.sh bench    build, then run the benchmarks
+set -euo pipefail
+cd "$(dirname "$0")"
+
+GOROOT_WASM="$(go env GOROOT)/lib/wasm"
+
+version() {
+  local v
+  v=$(git describe --always --dirty 2>/dev/null || true)
+  echo "${v:-dev}"
+}
+
+build() {
+  local v
+  v=$(version)
+  echo "build: site/clearkit.wasm (version $v)"
+  GOOS=js GOARCH=wasm go build -trimpath -ldflags "-s -w -X clearkit/core/api.Version=$v" \
+    -o site/clearkit.wasm ./wasm
+  cp "$GOROOT_WASM/wasm_exec.js" site/wasm_exec.js
+}
+
+# need_node makes sure Node.js is there: go_js_wasm_exec runs the bridge tests in it.
+need_node() {
+  command -v node >/dev/null 2>&1 && return
+  install_debian nodejs "Node.js (for the WebAssembly bridge tests)"
+}
+
+# need_chromium makes sure a Chromium for the browser tests is there.
+need_chromium() {
+  if [ -n "${CLEARKIT_CHROMIUM:-}" ] && [ -x "$CLEARKIT_CHROMIUM" ]; then return; fi
+  command -v chromium >/dev/null 2>&1 && return
+  install_debian chromium "Chromium (for the browser tests)"
+}
+
+install_debian() {
+  local pkg=$1 what=$2
+  if [ "$(id -u)" != 0 ] || ! command -v apt-get >/dev/null 2>&1; then
+    echo "build.sh: $what is missing. Install it with: sudo apt-get install -y $pkg" >&2
+    exit 1
+  fi
+  echo "build.sh: installing $what from Debian packages"
+  export DEBIAN_FRONTEND=noninteractive
+  apt-get update -qq
+  apt-get install -y -qq "$pkg" >/dev/null
+}
+
+run_tests() {
+  need_node
+  need_chromium
+  build
+  echo "test: gofmt and go vet"
+  local unformatted
+  unformatted=$(gofmt -l core wasm site)
+  if [ -n "$unformatted" ]; then
+    echo "gofmt would change: $unformatted" >&2
+    exit 1
+  fi
+  go vet ./...
+  GOOS=js GOARCH=wasm go vet ./wasm/...
+  echo "test: core, api and browser (native)"
+  go test -count=1 ./...
+  echo "test: WebAssembly bridge under Node"
+  PATH="$PATH:$GOROOT_WASM" GOOS=js GOARCH=wasm go test -count=1 ./wasm/...
+}
+
+run_bench() {
+  need_node
+  build
+  echo "bench: core and api (native)"
+  go test -run '^$' -bench . -benchmem ./core/...
+  echo "bench: WebAssembly bridge under Node"
+  PATH="$PATH:$GOROOT_WASM" GOOS=js GOARCH=wasm go test -run '^$' -bench . ./wasm/...
+  ls -l site/clearkit.wasm | awk '{print "size: site/clearkit.wasm " $5 " bytes raw"}'
+  echo "size: $(gzip -9c site/clearkit.wasm | wc -c) bytes gzip -9"
+}
+
+case "${1:-build}" in
+  build) build ;;
+  serve) build; exec go run ./site/serve -addr 127.0.0.1:8080 -dir site ;;
+  test) run_tests ;;
+  bench) run_bench ;;
+  *) echo "usage: ./build.sh [build|serve|test|bench]" >&2; exit 2 ;;
+esac

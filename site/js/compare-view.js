@@ -1,0 +1,77 @@
+// compare-view.js: the "Compare flows" view. One API call per input gives
+// both arrangements and every chart series.
+
+import { readForm, fillForm, showError } from './form.js';
+import { renderOutputs } from './format.js';
+import { drawChart } from './chart.js';
+
+// Demo values: an invented bench check at a home-care client.
+export const DEMO = { qb: '300', qd: '500', koa: '800', cbi: '', cdi: '' };
+
+const AXES = {
+  qb: { title: 'Clearance against blood flow', label: 'Blood flow QB (mL/min)' },
+  qd: { title: 'Clearance against dialysate flow', label: 'Dialysate flow QD (mL/min)' },
+  koa: { title: 'Clearance against filter KoA', label: 'KoA (mL/min)' },
+};
+
+export function mountCompare(root, engine) {
+  const form = root.querySelector('form');
+  const results = root.querySelector('.results');
+  const chart = root.querySelector('svg.chart');
+  const caption = root.querySelector('figcaption');
+  const axisButtons = root.querySelectorAll('[data-axis]');
+  let axis = 'qb';
+  let last = null;
+
+  function draw() {
+    if (!last) return;
+    const s = last.sweeps[axis];
+    caption.textContent = AXES[axis].title;
+    drawChart(chart, {
+      x: s.x,
+      xLabel: AXES[axis].label,
+      yLabel: 'Clearance K (mL/min)',
+      series: [
+        { values: s.countercurrent, className: 'series-counter', label: 'counter' },
+        { values: s.cocurrent, className: 'series-co', label: 'co' },
+      ],
+      ceilings: [
+        { values: s.countercurrent_ceiling, label: 'counter max' },
+        { values: s.cocurrent_ceiling, label: 'co max' },
+      ],
+      point: { x: last.input[axis], ys: [last.countercurrent.clearance, last.cocurrent.clearance] },
+    });
+  }
+
+  function update() {
+    const response = engine.call('compare', { ...readForm(form), sweep: {} });
+    if (!response.ok) {
+      showError(form, response.error);
+      results.classList.add('stale');
+      results.dataset.state = 'error';
+      return;
+    }
+    showError(form, null);
+    results.classList.remove('stale');
+    results.dataset.state = 'ok';
+    last = response;
+    renderOutputs(results, response);
+    draw();
+  }
+
+  form.addEventListener('input', update);
+  form.addEventListener('submit', (event) => event.preventDefault());
+  root.querySelector('#compare-demo').addEventListener('click', () => {
+    fillForm(form, DEMO);
+    update();
+  });
+  for (const button of axisButtons) {
+    button.addEventListener('click', () => {
+      axis = button.dataset.axis;
+      for (const b of axisButtons) b.setAttribute('aria-pressed', String(b === button));
+      draw();
+    });
+  }
+  fillForm(form, DEMO);
+  update();
+}

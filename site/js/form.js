@@ -1,0 +1,39 @@
+// form.js: reading a view's inputs and showing field errors beside them.
+
+// readForm returns {name: text} for every named input of form. Texts go to
+// the calculation API as typed: it accepts a decimal point or comma and
+// names the field when a text is not a number.
+export function readForm(form) {
+  const values = {};
+  for (const input of form.querySelectorAll('input[name]')) {
+    values[input.name] = input.value.trim();
+  }
+  return values;
+}
+
+// fillForm sets the inputs named in values.
+export function fillForm(form, values) {
+  for (const [name, value] of Object.entries(values)) {
+    const input = form.querySelector(`input[name="${name}"]`);
+    if (input) input.value = String(value);
+  }
+}
+
+// showError puts error ({field, message} from the API, or null to clear)
+// next to its field, or at the form's foot when no field of the form has
+// that name.
+export function showError(form, error) {
+  for (const slot of form.querySelectorAll('[data-error-for]')) slot.textContent = '';
+  for (const input of form.querySelectorAll('input[name]')) input.removeAttribute('aria-invalid');
+  if (!error) return;
+  const input = error.field ? form.querySelector(`input[name="${error.field}"]`) : null;
+  if (input) {
+    input.setAttribute('aria-invalid', 'true');
+    const details = input.closest('details');
+    if (details) details.open = true;
+    form.querySelector(`[data-error-for="${error.field}"]`).textContent = error.message;
+    return;
+  }
+  const label = error.field ? `${error.field}: ` : '';
+  form.querySelector('[data-error-for=""]').textContent = label + error.message;
+}

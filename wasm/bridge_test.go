@@ -1,0 +1,145 @@
+//go:build js && wasm
+
+package main
+
+import (
+	"encoding/json"
+	"strings"
+	"testing"
+
+	"github.com/hack-pad/safejs"
+
+	"clearkit/core"
+	"clearkit/core/api"
+)
+
+// These tests run under Node (GOOS=js GOARCH=wasm go test with
+// go_js_wasm_exec from the Go toolchain) and call the published functions
+// through JavaScript, as the page does.
+
+func init() {
+	entries := append([]api.Entry{
+		{"boom", func([]byte) []byte { panic("forced for the test") }},
+		{"echo", func(b []byte) []byte { return b }},
+	}, api.Entries...)
+	if err := publish("clearkitTest", entries); err != nil {
+		panic(err)
+	}
+}
+
+// call invokes globalThis.clearkitTest[name](args...) and returns the string.
+func call(t testing.TB, name string, args ...any) string {
+	t.Helper()
+	ck, err := safejs.Global().Get("clearkitTest")
+	if err != nil {
+		t.Fatal(err)
+	}
+	v, err := ck.Call(name, args...)
+	if err != nil {
+		t.Fatalf("%s threw: %v", name, err)
+	}
+	if v.Type() != safejs.TypeString {
+		t.Fatalf("%s returned a %v, want a string", name, v.Type())
+	}
+	s, err := v.String()
+	if err != nil {
+		t.Fatal(err)
+	}
+	return s
+}
+
+type failure struct {
+	OK    bool `json:"ok"`
+	Error struct {
+		Field   string `json:"field"`
+		Message string `json:"message"`
+	} `json:"error"`
+}
+
+func decodeFailure(t *testing.T, s string) failure {
+	t.Helper()
+	var f failure
+	if err := json.Unmarshal([]byte(s), &f); err != nil {
+		t.Fatalf("response %q is not JSON: %v", s, err)
+	}
+	if f.OK || f.Error.Message == "" {
+		t.Fatalf("response %s: want ok:false with a message", s)
+	}
+	return f
+}
+
+func TestVersionPublished(t *testing.T) {
+	ck, _ := safejs.Global().Get("clearkitTest")
+	v, err := ck.Get("version")
+	if err != nil || v.Type() != safejs.TypeString {
+		t.Fatalf("clearkit.version is %v (%v), want a string", v.Type(), err)
+	}
+}
+
+func TestCompareThroughJS(t *testing.T) {
+	got := call(t, "compare", `{"qb":300,"qd":500,"koa":800}`)
+	var resp struct {
+		OK             bool             `json:"ok"`
+		Countercurrent core.Performance `json:"countercurrent"`
+		Cocurrent      core.Performance `json:"cocurrent"`
+	}
+	if err := json.Unmarshal([]byte(got), &resp); err != nil {
+		t.Fatalf("compare: %v in %s", err, got)
+	}
+	// The bridge must hand back exactly what the API computes natively.
+	want, err := core.Compare(core.Operating{QB: 300, QD: 500, KoA: 800, CBi: 1})
+	if err != nil {
+		t.Fatal(err)
+	}
+	if !resp.OK || resp.Countercurrent != want.Countercurrent || resp.Cocurrent != want.Cocurrent {
+		t.Errorf("compare through JS = %s, want the values of core.Compare %+v", got, want)
+	}
+}
+
+func TestErrorShapes(t *testing.T) {
+	for _, tc := range []struct{ request, field string }{
+		{`{"qb":-1,"qd":500,"koa":800}`, "qb"},
+		{`{"qb":300,"qd":0,"koa":800}`, "qd"},
+		{`{"qb":300,"qd":500}`, "koa"},
+		{`{"qb":300,"qd":500,"koa":"x"}`, "koa"},
+		{`{"qb":300,"qd":500,"koa":"Infinity"}`, "koa"},
+		{`{"qb":300,`, ""},
+	} {
+		f := decodeFailure(t, call(t, "compare", tc.request))
+		if f.Error.Field != tc.field {
+			t.Errorf("compare(%s) field = %q, want %q", tc.request, f.Error.Field, tc.field)
+		}
+	}
+}
+
+func TestPanicBecomesFailure(t *testing.T) {
+	f := decodeFailure(t, call(t, "boom", `{}`))
+	if !strings.Contains(f.Error.Message, "forced for the test") {
+		t.Errorf("boom message = %q, want the panic value", f.Error.Message)
+	}
+}
+
+func TestBadArguments(t *testing.T) {
+	decodeFailure(t, call(t, "compare"))
+	decodeFailure(t, call(t, "compare", 42))
+	decodeFailure(t, call(t, "compare", `{}`, `{}`))
+}
+
+// BenchmarkEmptyCall is the floor: a string in and out through js/wasm.
+func BenchmarkEmptyCall(b *testing.B) {
+	for b.Loop() {
+		call(b, "echo", `{"qb":300,"qd":500,"koa":800}`)
+	}
+}
+
+func BenchmarkBridgeCompare(b *testing.B) {
+	for b.Loop() {
+		call(b, "compare", `{"qb":300,"qd":500,"koa":800}`)
+	}
+}
+
+func BenchmarkBridgeCompareWithSweep(b *testing.B) {
+	for b.Loop() {
+		call(b, "compare", `{"qb":300,"qd":500,"koa":800,"sweep":{}}`)
+	}
+}

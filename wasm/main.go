@@ -1,0 +1,52 @@
+//go:build js && wasm
+
+package main
+
+import (
+	"fmt"
+
+	"github.com/hack-pad/safejs"
+
+	"clearkit/core/api"
+)
+
+func main() {
+	if err := publish("clearkit", api.Entries); err != nil {
+		// Nothing can be called: say so on the console and stop.
+		fmt.Println("clearkit: could not publish the calculation API:", err)
+		return
+	}
+	select {} // serve calls for the life of the page
+}
+
+// publish sets globalThis[name] = {version, NAME(request) for each entry}.
+func publish(name string, entries []api.Entry) error {
+	object, err := safejs.Global().Get("Object")
+	if err != nil {
+		return err
+	}
+	ck, err := object.New()
+	if err != nil {
+		return err
+	}
+	if err := ck.Set("version", api.Version); err != nil {
+		return err
+	}
+	for _, e := range entries {
+		fn, err := safejs.FuncOf(handler(e.Call))
+		if err != nil {
+			return err
+		}
+		if err := ck.Set(e.Name, fn.Value()); err != nil {
+			return err
+		}
+	}
+	return safejs.Global().Set(name, ck)
+}
+
+// handler adapts an API call to a JavaScript function of one string.
+func handler(call func([]byte) []byte) func(safejs.Value, []safejs.Value) any {
+	return func(_ safejs.Value, args []safejs.Value) any {
+		return string(invoke(call, args))
+	}
+}
