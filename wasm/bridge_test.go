@@ -19,8 +19,8 @@ import (
 
 func init() {
 	entries := append([]api.Entry{
-		{"boom", func([]byte) []byte { panic("forced for the test") }},
-		{"echo", func(b []byte) []byte { return b }},
+		{Name: "boom", Call: func([]byte) []byte { panic("forced for the test") }},
+		{Name: "echo", Call: func(b []byte) []byte { return b }},
 	}, api.Entries...)
 	if err := publish("clearkitTest", entries); err != nil {
 		panic(err)

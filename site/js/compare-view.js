@@ -14,6 +14,9 @@ const AXES = {
   koa: { title: 'Clearance against filter KoA', label: 'KoA (mL/min)' },
 };
 
+// mountCompare wires the view in root and returns its handle for main.js:
+// snapshot() gives {view, inputs, result} for the last valid calculation
+// (null while an input is in error); restore(inputs) refills and recomputes.
 export function mountCompare(root, engine) {
   const form = root.querySelector('form');
   const results = root.querySelector('.results');
@@ -74,4 +77,12 @@ export function mountCompare(root, engine) {
   }
   fillForm(form, DEMO);
   update();
+  return {
+    name: 'compare',
+    snapshot: () => (results.dataset.state === 'ok' && last ? { view: 'compare', inputs: readForm(form), result: last } : null),
+    restore(inputs) {
+      fillForm(form, inputs);
+      update();
+    },
+  };
 }

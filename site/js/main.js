@@ -5,6 +5,10 @@ import { mountCompare } from './compare-view.js';
 
 const status = document.getElementById('engine-status');
 
+// views maps a view name to the handle its mount function returned
+// ({name, snapshot(), restore(inputs)}), for features that work across views.
+export const views = new Map();
+
 function showView(name) {
   for (const view of document.querySelectorAll('section.view')) view.hidden = view.dataset.view !== name;
   for (const tab of document.querySelectorAll('.view-tab')) tab.setAttribute('aria-pressed', String(tab.dataset.view === name));
@@ -14,7 +18,7 @@ async function start() {
   try {
     const engine = await loadEngine();
     document.getElementById('app-version').textContent = `version ${engine.version}`;
-    mountCompare(document.getElementById('view-compare'), engine);
+    views.set('compare', mountCompare(document.getElementById('view-compare'), engine));
     for (const tab of document.querySelectorAll('.view-tab')) {
       tab.addEventListener('click', () => showView(tab.dataset.view));
     }
