@@ -1,6 +1,6 @@
 #!/usr/bin/env bash
 # ClearKit build, serve and test.
-#   ./build.sh          build the page into site/ (clearkit.wasm, wasm_exec.js)
+#   ./build.sh          build the page into site/ (clearkit.wasm, wasm_exec.js, precache.js)
 #   ./build.sh serve    build, then serve site/ on http://127.0.0.1:8080
 #   ./build.sh test     build, then run every test (installs Chromium if missing)
 #   ./build.sh bench    build, then run the benchmarks
@@ -22,6 +22,9 @@ build() {
   GOOS=js GOARCH=wasm go build -trimpath -ldflags "-s -w -X clearkit/core/api.Version=$v" \
     -o site/clearkit.wasm ./wasm
   cp "$GOROOT_WASM/wasm_exec.js" site/wasm_exec.js
+  # Last: the service worker's file list and cache version, a hash of
+  # everything above (see site/precache.go).
+  go run ./site/precache -dir site
 }
 
 # need_node makes sure Node.js is there: go_js_wasm_exec runs the bridge tests in it.

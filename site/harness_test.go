@@ -8,10 +8,12 @@ package site
 import (
 	"context"
 	"fmt"
+	"mime"
 	"net/http"
 	"net/http/httptest"
 	"os"
 	"os/exec"
+	"path"
 	"path/filepath"
 	"strings"
 	"sync"
@@ -84,16 +86,30 @@ func chromiumPath() string {
 
 // testServer serves site/ on 127.0.0.1. While offline is set it refuses
 // every request by closing the connection, as a network that is gone would.
+// precache.js is computed afresh from site/ (so a test never meets a stale
+// one), and serveFile can put other content in place of a file.
 type testServer struct {
 	*httptest.Server
 	offline atomic.Bool
 	mu      sync.Mutex
 	paths   []string
+	files   map[string][]byte // URL path -> body served instead of the file
+}
+
+// serveFile serves body at path (for example "/precache.js") from now on.
+func (s *testServer) serveFile(path string, body []byte) {
+	s.mu.Lock()
+	s.files[path] = body
+	s.mu.Unlock()
 }
 
 func newTestServer(t *testing.T) *testServer {
 	t.Helper()
-	s := &testServer{}
+	build, err := Precache(".")
+	if err != nil {
+		t.Fatal(err)
+	}
+	s := &testServer{files: map[string][]byte{"/" + PrecacheFile: build.Script()}}
 	h := Handler(".")
 	s.Server = httptest.NewServer(http.HandlerFunc(func(w http.ResponseWriter, r *http.Request) {
 		if s.offline.Load() {
@@ -108,7 +124,14 @@ func newTestServer(t *testing.T) *testServer {
 		}
 		s.mu.Lock()
 		s.paths = append(s.paths, r.URL.Path)
+		body, replaced := s.files[r.URL.Path]
 		s.mu.Unlock()
+		if replaced {
+			w.Header().Set("Content-Type", mime.TypeByExtension(path.Ext(r.URL.Path)))
+			w.Header().Set("Cache-Control", "no-cache")
+			w.Write(body)
+			return
+		}
 		h.ServeHTTP(w, r)
 	}))
 	t.Cleanup(s.Close)

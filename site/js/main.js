@@ -2,6 +2,7 @@
 
 import { loadEngine } from './engine.js';
 import { mountCompare } from './compare-view.js';
+import { startOffline } from './offline.js';
 
 const status = document.getElementById('engine-status');
 
@@ -30,4 +31,6 @@ async function start() {
   }
 }
 
-start();
+// The service worker is registered once the calculator has started, so that
+// storing the offline copy does not slow the first start.
+start().finally(() => startOffline(document.getElementById('offline-status')));
