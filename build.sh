@@ -69,6 +69,20 @@ run_tests() {
   go test -count=1 ./...
   echo "test: WebAssembly bridge under Node"
   PATH="$PATH:$GOROOT_WASM" GOOS=js GOARCH=wasm go test -count=1 ./wasm/...
+  run_fuzz
+}
+
+# run_fuzz runs every fuzz target (func FuzzX in a _test.go file) for
+# CLEARKIT_FUZZTIME each (default 5s). A failure is written to the
+# package's testdata/fuzz/ and fails the run: commit it as a seed.
+run_fuzz() {
+  local fuzztime=${CLEARKIT_FUZZTIME:-5s} file target
+  for file in $(grep -l '^func Fuzz' --include='*_test.go' -r core wasm site internal 2>/dev/null); do
+    for target in $(sed -n 's/^func \(Fuzz[A-Za-z0-9_]*\)(.*/\1/p' "$file"); do
+      echo "test: fuzz $target in ./$(dirname "$file") for $fuzztime"
+      go test -run '^$' -fuzz "^$target\$" -fuzztime "$fuzztime" "./$(dirname "$file")"
+    done
+  done
 }
 
 run_bench() {

@@ -11,6 +11,11 @@ const (
 	MaxFlow          = 1e5  // mL/min
 	MaxKoA           = 1e8  // mL/min
 	MaxConcentration = 1e9  // any unit
+	// MinConcentration is the smallest blood inlet concentration: it
+	// bounds the ratio CDi/CBi, which multiplies clearance, so that
+	// clearance stays finite (at most MaxFlow MaxConcentration /
+	// MinConcentration = 1e44 in size) and no concentration is subnormal.
+	MinConcentration = 1e-30 // any unit
 )
 
 // checkFlow validates a flow that must be strictly positive.
@@ -41,13 +46,16 @@ func checkKoA(field string, v float64) error {
 	return nil
 }
 
-// checkConcentration validates a concentration; positive demands > 0.
+// checkConcentration validates a concentration; positive demands at
+// least MinConcentration.
 func checkConcentration(field string, v float64, positive bool) error {
 	switch {
 	case math.IsNaN(v) || math.IsInf(v, 0):
 		return fieldErrorf(field, "must be a finite number")
 	case positive && v <= 0:
 		return fieldErrorf(field, "must be greater than 0 (got %g)", v)
+	case positive && v < MinConcentration:
+		return fieldErrorf(field, "is too small to compute with (minimum %g, got %g)", MinConcentration, v)
 	case v < 0:
 		return fieldErrorf(field, "must not be negative (got %g)", v)
 	case v > MaxConcentration:

@@ -163,6 +163,8 @@ var badOperating = []struct {
 	{func(o *core.Operating) { o.CBi = -1 }, "cbi", "greater than 0"},
 	{func(o *core.Operating) { o.CBi = math.NaN() }, "cbi", "finite"},
 	{func(o *core.Operating) { o.CBi = 2e9 }, "cbi", "maximum"},
+	{func(o *core.Operating) { o.CBi = 1e-31 }, "cbi", "too small"},
+	{func(o *core.Operating) { o.CBi = 5e-324 }, "cbi", "too small"},
 	{func(o *core.Operating) { o.CDi = -0.1 }, "cdi", "negative"},
 	{func(o *core.Operating) { o.CDi = math.NaN() }, "cdi", "finite"},
 	{func(o *core.Operating) { o.CDi = math.Inf(1) }, "cdi", "finite"},
@@ -196,7 +198,9 @@ func TestValidateLimits(t *testing.T) {
 	for _, op := range []core.Operating{
 		{QB: core.MinFlow, QD: core.MinFlow, KoA: 0, CBi: 1, CDi: 0},
 		{QB: core.MaxFlow, QD: core.MaxFlow, KoA: core.MaxKoA, CBi: core.MaxConcentration, CDi: core.MaxConcentration},
-		{QB: core.MinFlow, QD: core.MaxFlow, KoA: core.MaxKoA, CBi: 5e-324, CDi: 0},
+		{QB: core.MinFlow, QD: core.MaxFlow, KoA: core.MaxKoA, CBi: core.MinConcentration, CDi: 0},
+		// The largest ratio CDi/CBi: clearance is about -1e44 mL/min.
+		{QB: core.MaxFlow, QD: core.MaxFlow, KoA: core.MaxKoA, CBi: core.MinConcentration, CDi: core.MaxConcentration},
 		{QB: core.MaxFlow, QD: core.MinFlow, KoA: 5e-324, CBi: 1, CDi: 3},
 	} {
 		if err := op.Validate(); err != nil {

@@ -11,6 +11,7 @@ import (
 
 	"clearkit/core"
 	"clearkit/core/api"
+	"clearkit/internal/badinput"
 )
 
 // These tests run under Node (GOOS=js GOARCH=wasm go test with
@@ -42,6 +43,42 @@ func call(t testing.TB, name string, args ...any) string {
 		t.Fatalf("%s returned a %v, want a string", name, v.Type())
 	}
 	s, err := v.String()
+	if err != nil {
+		t.Fatal(err)
+	}
+	return s
+}
+
+// jsString makes the JavaScript string whose UTF-8 form is b. A Go string
+// passed as an argument would lose a leading byte order mark on the way
+// (wasm_exec.js decodes with a TextDecoder that strips it); a page's
+// strings have no such step.
+func jsString(t testing.TB, b []byte) safejs.Value {
+	t.Helper()
+	bytes, err := safejs.Global().Get("Uint8Array")
+	if err != nil {
+		t.Fatal(err)
+	}
+	arr, err := bytes.New(len(b))
+	if err != nil {
+		t.Fatal(err)
+	}
+	if _, err := safejs.CopyBytesToJS(arr, b); err != nil {
+		t.Fatal(err)
+	}
+	decoderClass, err := safejs.Global().Get("TextDecoder")
+	if err != nil {
+		t.Fatal(err)
+	}
+	options, err := safejs.ValueOf(map[string]any{"ignoreBOM": true})
+	if err != nil {
+		t.Fatal(err)
+	}
+	decoder, err := decoderClass.New("utf-8", options)
+	if err != nil {
+		t.Fatal(err)
+	}
+	s, err := decoder.Call("decode", arr)
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -108,6 +145,33 @@ func TestErrorShapes(t *testing.T) {
 		f := decodeFailure(t, call(t, "compare", tc.request))
 		if f.Error.Field != tc.field {
 			t.Errorf("compare(%s) field = %q, want %q", tc.request, f.Error.Field, tc.field)
+		}
+	}
+}
+
+// TestBadInputThroughJS runs the catalogue of bad input
+// (testdata/bad-input.json) through the published functions, as the page
+// would call them: each case gives its field and message, and the bridge
+// returns exactly what the API returns natively.
+func TestBadInputThroughJS(t *testing.T) {
+	c, err := badinput.Load()
+	if err != nil {
+		t.Fatal(err)
+	}
+	for _, e := range api.Entries {
+		cases, err := c.Cases(e.Name)
+		if err != nil {
+			t.Fatal(err)
+		}
+		for _, cs := range cases {
+			got := call(t, e.Name, jsString(t, cs.Body))
+			f := decodeFailure(t, got)
+			if f.Error.Field != cs.Field || !strings.Contains(f.Error.Message, cs.Message) {
+				t.Errorf("%s, %s: %s through JS = %s, want field %q with %q", e.Name, cs.Name, e.Name, got, cs.Field, cs.Message)
+			}
+			if native := string(e.Call(cs.Body)); got != native {
+				t.Errorf("%s, %s: through JS %s, natively %s", e.Name, cs.Name, got, native)
+			}
 		}
 	}
 }

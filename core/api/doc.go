@@ -12,7 +12,9 @@
 // may be JSON numbers or strings holding a decimal number written with a
 // point or a comma ("2.5", "2,5"); an empty string or null counts as
 // absent. Unknown fields are refused, so that a misspelt optional field
-// cannot silently fall back to its default.
+// cannot silently fall back to its default, and so are fields given twice
+// (keys match fields without regard to case); both are named by their full
+// path, such as "sweep.points".
 //
 // The package is pure Go (no syscall/js) and is tested and fuzzed natively.
 package api

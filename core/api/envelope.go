@@ -31,35 +31,67 @@ func fieldErr(field, message string) error {
 	return &core.FieldError{Field: field, Message: message}
 }
 
-// decode reads request into v, refusing oversized bodies, malformed JSON
-// and unknown fields.
+// decode reads request, a JSON object, into v (a pointer to a request
+// struct). It refuses oversized and empty bodies, malformed JSON, anything
+// but an object, data after the object, and, by their full path such as
+// "sweep.points", unknown fields and fields given more than once (see
+// checkKeys).
 func decode(request []byte, v any) error {
 	if len(request) > MaxRequestBytes {
 		return fieldErr("", "request is too large (limit 64 KiB)")
 	}
-	if len(bytes.TrimSpace(request)) == 0 {
+	trimmed := bytes.TrimSpace(request)
+	if len(trimmed) == 0 {
 		return fieldErr("", "request is empty: send a JSON object")
 	}
+	isObject := trimmed[0] == '{'
 	d := json.NewDecoder(bytes.NewReader(request))
-	d.DisallowUnknownFields()
 	if err := d.Decode(v); err != nil {
-		msg := err.Error()
-		if name, ok := strings.CutPrefix(msg, `json: unknown field "`); ok {
-			name = strings.TrimSuffix(name, `"`)
-			return fieldErr(name, "is not a field of this request")
-		}
-		var te *json.UnmarshalTypeError
-		if errors.As(err, &te) && te.Field != "" {
-			return fieldErr(te.Field, "has the wrong type ("+te.Value+")")
-		}
-		return fieldErr("", "request is not valid JSON: "+strings.TrimPrefix(msg, "json: "))
+		return decodeError(request, isObject, err)
 	}
 	// Decoder.More reports false before a stray '}' or ']', so look at
 	// everything after the object instead.
 	if len(bytes.TrimSpace(request[d.InputOffset():])) != 0 {
-		return fieldErr("", "request has data after the JSON object")
+		return dataAfter
 	}
-	return nil
+	if !isObject { // null decodes into a struct without error
+		return notObject
+	}
+	return checkKeys(request, v)
+}
+
+var (
+	notObject = fieldErr("", "request must be a JSON object")
+	dataAfter = fieldErr("", "request has data after the JSON object")
+	tooDeep   = fieldErr("", "request is nested too deeply")
+)
+
+// decodeError explains why the decoder refused request. A request that is
+// not JSON at all is refused as a whole, even where the decoder stopped
+// first at a value of the wrong type.
+func decodeError(request []byte, isObject bool, err error) error {
+	msg := err.Error()
+	if strings.Contains(msg, "exceeded max depth") {
+		return tooDeep
+	}
+	if !json.Valid(request) {
+		var first json.RawMessage
+		d := json.NewDecoder(bytes.NewReader(request))
+		if err := d.Decode(&first); err != nil {
+			msg = err.Error()
+		} else {
+			return dataAfter
+		}
+	} else {
+		var te *json.UnmarshalTypeError
+		switch {
+		case !isObject:
+			return notObject
+		case errors.As(err, &te) && te.Field != "":
+			return fieldErr(te.Field, "has the wrong type ("+te.Value+")")
+		}
+	}
+	return fieldErr("", "request is not valid JSON: "+strings.TrimPrefix(msg, "json: "))
 }
 
 // respond encodes a successful response, or the failure err.
