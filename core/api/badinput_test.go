@@ -34,11 +34,11 @@ func TestBadInput(t *testing.T) {
 			got := e.Call(cs.Body)
 			env := checkResponse(t, e, cs.Body, got)
 			if *env.OK {
-				t.Errorf("%s, %s: %s(%q) succeeded, want field %q with %q", e.Name, cs.Name, e.Name, clip(cs.Body), cs.Field, cs.Message)
+				t.Errorf("%s, %s: %s(%q) succeeded, want field %q with %q", e.Name, cs.Name, e.Name, shown(cs.Body), cs.Field, cs.Message)
 				continue
 			}
 			if *env.Error.Field != cs.Field || !strings.Contains(env.Error.Message, cs.Message) {
-				t.Errorf("%s, %s: %s(%q) = %s, want field %q with %q", e.Name, cs.Name, e.Name, clip(cs.Body), got, cs.Field, cs.Message)
+				t.Errorf("%s, %s: %s(%q) = %s, want field %q with %q", e.Name, cs.Name, e.Name, shown(cs.Body), got, cs.Field, cs.Message)
 			}
 		}
 	}
@@ -75,7 +75,7 @@ func TestCatalogueValidRequests(t *testing.T) {
 		padded := append(compact.Bytes(), bytes.Repeat([]byte{' '}, api.MaxRequestBytes-compact.Len())...)
 		for _, req := range append([][]byte{section.Valid, padded}, rawList(section.Examples)...) {
 			if env := checkResponse(t, e, req, e.Call(req)); !*env.OK {
-				t.Errorf("%s(%q) = %s: %s, want success", e.Name, clip(req), *env.Error.Field, env.Error.Message)
+				t.Errorf("%s(%q) = %s: %s, want success", e.Name, shown(req), *env.Error.Field, env.Error.Message)
 			}
 		}
 	}

@@ -59,7 +59,7 @@ func TestPropertyCompareMatchesCore(t *testing.T) {
 		}
 		resp := api.Compare([]byte(req))
 		if err := json.Unmarshal(resp, &got); err != nil || !got.OK {
-			t.Fatalf("Compare(%s) = %s (%v), want success", req, clip(resp), err)
+			t.Fatalf("Compare(%s) = %s (%v), want success", req, shown(resp), err)
 		}
 		want, err := core.Compare(op)
 		if err != nil {

@@ -34,31 +34,31 @@ type envelope struct {
 func checkResponse(t *testing.T, e api.Entry, request, response []byte) envelope {
 	t.Helper()
 	if !json.Valid(response) {
-		t.Fatalf("%s(%q) = %q: not valid JSON", e.Name, clip(request), clip(response))
+		t.Fatalf("%s(%q) = %q: not valid JSON", e.Name, shown(request), shown(response))
 	}
 	var env envelope
 	if err := json.Unmarshal(response, &env); err != nil || env.OK == nil {
-		t.Fatalf("%s(%q) = %q: not an object with ok (%v)", e.Name, clip(request), clip(response), err)
+		t.Fatalf("%s(%q) = %q: not an object with ok (%v)", e.Name, shown(request), shown(response), err)
 	}
 	if !*env.OK {
 		checkFailure(t, e, request, response, env)
 		return env
 	}
 	if !json.Valid(request) {
-		t.Fatalf("%s(%q) = %q: ok:true for a request that is not JSON", e.Name, clip(request), clip(response))
+		t.Fatalf("%s(%q) = %q: ok:true for a request that is not JSON", e.Name, shown(request), shown(response))
 	}
 	if env.Error != nil {
-		t.Errorf("%s(%q) = %q: ok:true with an error member", e.Name, clip(request), clip(response))
+		t.Errorf("%s(%q) = %q: ok:true with an error member", e.Name, shown(request), shown(response))
 	}
 	if err := finiteNumbers(response); err != nil {
-		t.Fatalf("%s(%q) = %q: %v", e.Name, clip(request), clip(response), err)
+		t.Fatalf("%s(%q) = %q: %v", e.Name, shown(request), shown(response), err)
 	}
 	check, ok := physicalChecks[e.Name]
 	if !ok {
 		t.Fatalf("entry %q has no physical bounds check: add one to physicalChecks in core/api/response_test.go", e.Name)
 	}
 	if err := check(response); err != nil {
-		t.Errorf("%s(%q): %v\nresponse %s", e.Name, clip(request), err, clip(response))
+		t.Errorf("%s(%q): %v\nresponse %s", e.Name, shown(request), err, shown(response))
 	}
 	return env
 }
@@ -66,17 +66,17 @@ func checkResponse(t *testing.T, e api.Entry, request, response []byte) envelope
 func checkFailure(t *testing.T, e api.Entry, request, response []byte, env envelope) {
 	t.Helper()
 	if env.Error == nil || env.Error.Field == nil || env.Error.Message == "" {
-		t.Fatalf("%s(%q) = %q: ok:false needs error.field and a message", e.Name, clip(request), clip(response))
+		t.Fatalf("%s(%q) = %q: ok:false needs error.field and a message", e.Name, shown(request), shown(response))
 	}
 	field, msg := *env.Error.Field, env.Error.Message
 	if strings.Contains(msg, "internal error") {
-		t.Fatalf("%s(%q) = %q: an internal error is a bug, not an answer to bad input", e.Name, clip(request), clip(response))
+		t.Fatalf("%s(%q) = %q: an internal error is a bug, not an answer to bad input", e.Name, shown(request), shown(response))
 	}
 	if env.Error.Limit != nil && (math.IsNaN(*env.Error.Limit) || math.IsInf(*env.Error.Limit, 0)) {
-		t.Errorf("%s(%q) = %q: error.limit is not finite", e.Name, clip(request), clip(response))
+		t.Errorf("%s(%q) = %q: error.limit is not finite", e.Name, shown(request), shown(response))
 	}
 	if !json.Valid(request) && field != "" {
-		t.Errorf("%s(%q) = %q: a request that is not JSON must be refused as a whole (field \"\")", e.Name, clip(request), clip(response))
+		t.Errorf("%s(%q) = %q: a request that is not JSON must be refused as a whole (field \"\")", e.Name, shown(request), shown(response))
 	}
 	// An unknown field is named as sent; every other error names a field
 	// the entry knows, or the request.
@@ -84,7 +84,7 @@ func checkFailure(t *testing.T, e api.Entry, request, response []byte, env envel
 		return
 	}
 	if !isRequestField(e, field) {
-		t.Errorf("%s(%q) = %q: error names %q, which is not a field of the request", e.Name, clip(request), clip(response), field)
+		t.Errorf("%s(%q) = %q: error names %q, which is not a field of the request", e.Name, shown(request), shown(response), field)
 	}
 }
 
@@ -133,7 +133,7 @@ func finiteNumbers(b []byte) error {
 	}
 }
 
-func clip(b []byte) string {
+func shown(b []byte) string {
 	if len(b) > 300 {
 		return string(b[:300]) + fmt.Sprintf("... (%d bytes)", len(b))
 	}
