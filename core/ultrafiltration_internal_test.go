@@ -1,0 +1,98 @@
+package core
+
+import (
+	"math"
+	"testing"
+)
+
+// The quadrature behind Transfer, run with QF = 0 (which Transfer itself
+// sends to the closed forms), must reproduce the closed forms of flow.go:
+// the effectiveness-NTU relations (Incropera & DeWitt ch. 11, from
+// memory), themselves checked against published values in flow_test.go.
+// This tests the integrating factor, the Gauss-Legendre rule, the panels
+// and the counter-current superposition on their own, including the stiff
+// cases (NTU up to 1e10) where the kernel is cut at e^-46. Measured worst
+// relative error: about 7e-16; the tolerance is 1e-14.
+func TestMembraneWithoutFiltration(t *testing.T) {
+	const rel = 1e-14
+	flows := []float64{1e-3, 0.5, 50, 200, 300, 300 * (1 + 1e-12), 500, 800, 1e4, 1e5}
+	for _, qb := range flows {
+		for _, qd := range flows {
+			for _, koa := range []float64{1e-3, 10, 200, 800, 1500, 3000, 1e5, 1e7} {
+				for _, a := range Arrangements {
+					for _, s := range []float64{1, 0.5, 0} {
+						m := newMembrane(a, qb, qd, koa, Filtration{QF: 0, Sieving: s})
+						k, d := m.solve()
+						want := Dialysance(a, qb, qd, koa)
+						if math.Abs(k-want) > rel*want || math.Abs(d-want) > rel*want {
+							t.Errorf("membrane(%v, %g, %g, %g, QF 0, S %g).solve() = %.17g, %.17g, want Dialysance %.17g", a, qb, qd, koa, s, k, d, want)
+						}
+					}
+				}
+			}
+		}
+	}
+}
+
+// A Gauss-Legendre rule with n nodes integrates every polynomial of degree
+// up to 2n - 1 exactly (Abramowitz & Stegun ch. 25, from memory) and no
+// rule with n nodes does so for degree 2n (its error there is above 1e-12 relative
+// for n <= 20). The monomial x^j has integral
+// 2/(j+1) over [-1, 1] for even j and 0 for odd j.
+func TestLegendreRule(t *testing.T) {
+	for _, n := range []int{1, 2, 3, 5, 8, 16, 20} {
+		nodes, weights := legendreRule(n)
+		for i := 1; i < n; i++ {
+			if !(nodes[i-1] < nodes[i]) || weights[i] <= 0 {
+				t.Errorf("legendreRule(%d): nodes %v, weights %v, want ascending nodes and positive weights", n, nodes, weights)
+				break
+			}
+		}
+		quad := func(j int) float64 {
+			var sum float64
+			for i, x := range nodes {
+				sum += weights[i] * math.Pow(x, float64(j))
+			}
+			return sum
+		}
+		exact := func(j int) float64 {
+			if j%2 == 1 {
+				return 0
+			}
+			return 2 / float64(j+1)
+		}
+		for j := 0; j <= 2*n-1; j++ {
+			if got, want := quad(j), exact(j); math.Abs(got-want) > 1e-15 {
+				t.Errorf("legendreRule(%d) on x^%d = %.17g, want %.17g", n, j, got, want)
+			}
+		}
+		if got, want := quad(2*n), exact(2*n); math.Abs(got-want) < 1e-12*want {
+			t.Errorf("legendreRule(%d) on x^%d = %.17g: exact, but a %d-node rule cannot be", n, 2*n, got, n)
+		}
+	}
+	// Two nodes: +-1/sqrt(3) with weights 1 (the classical two-point rule).
+	nodes, weights := legendreRule(2)
+	if math.Abs(nodes[1]-1/math.Sqrt(3)) > 3e-16 || math.Abs(weights[0]-1) > 1e-15 {
+		t.Errorf("legendreRule(2) = %v, %v, want +-1/sqrt(3) and 1, 1", nodes, weights)
+	}
+}
+
+// endMean is the log-mean of two end differences with the documented
+// special cases of EvaluateFiltered. The log-mean of e and 1 is
+// (e - 1)/ln e = e - 1 (by hand).
+func TestEndMean(t *testing.T) {
+	for _, c := range []struct{ x, y, want float64 }{
+		{math.E, 1, math.E - 1},
+		{1, math.E, math.E - 1},
+		{2, 2, 2},
+		{-math.E, -1, -(math.E - 1)},
+		{1, 0, 0},
+		{0, -3, 0},
+		{1, -3, -1}, // opposite signs: the arithmetic mean
+		{4, 4 * (1 + 1e-15), 4 * (1 + 0.5e-15)},
+	} {
+		if got := endMean(c.x, c.y); math.Abs(got-c.want) > 1e-15*math.Abs(c.want) {
+			t.Errorf("endMean(%g, %g) = %.17g, want %.17g", c.x, c.y, got, c.want)
+		}
+	}
+}
