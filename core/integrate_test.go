@@ -33,12 +33,19 @@ func (y balance) plus(k balance, h float64) balance {
 
 // rk4 integrates dy/dsigma = f(y) from sigma = 0 to 1 in n steps.
 func rk4(y balance, f func(balance) balance, n int) balance {
+	return rk4Along(y, func(_ float64, y balance) balance { return f(y) }, n)
+}
+
+// rk4Along integrates dy/dsigma = f(sigma, y) from sigma = 0 to 1 in n
+// steps (classical fourth-order Runge-Kutta).
+func rk4Along(y balance, f func(float64, balance) balance, n int) balance {
 	h := 1 / float64(n)
-	for range n {
-		k1 := f(y)
-		k2 := f(y.plus(k1, h/2))
-		k3 := f(y.plus(k2, h/2))
-		k4 := f(y.plus(k3, h))
+	for i := range n {
+		s := float64(i) * h
+		k1 := f(s, y)
+		k2 := f(s+h/2, y.plus(k1, h/2))
+		k3 := f(s+h/2, y.plus(k2, h/2))
+		k4 := f(s+h, y.plus(k3, h))
 		y = balance{
 			y.cb + h/6*(k1.cb+2*k2.cb+2*k3.cb+k4.cb),
 			y.cd + h/6*(k1.cd+2*k2.cd+2*k3.cd+k4.cd),

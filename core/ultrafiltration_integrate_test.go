@@ -34,31 +34,6 @@ import (
 //	CD' = (N - QF CD)/QD(s)    co-current
 //	CD' = (QF CD - N)/QD(s)    counter-current
 
-// ufState is the state integrated along the membrane.
-type ufState struct{ cb, cd, w float64 }
-
-func (y ufState) plus(k ufState, h float64) ufState {
-	return ufState{y.cb + h*k.cb, y.cd + h*k.cd, y.w + h*k.w}
-}
-
-// ufRK4 integrates dy/dsigma = f(sigma, y) from sigma = 0 to 1 in n steps.
-func ufRK4(y ufState, f func(float64, ufState) ufState, n int) ufState {
-	h := 1 / float64(n)
-	for i := range n {
-		s := float64(i) * h
-		k1 := f(s, y)
-		k2 := f(s+h/2, y.plus(k1, h/2))
-		k3 := f(s+h/2, y.plus(k2, h/2))
-		k4 := f(s+h, y.plus(k3, h))
-		y = ufState{
-			y.cb + h/6*(k1.cb+2*k2.cb+2*k3.cb+k4.cb),
-			y.cd + h/6*(k1.cd+2*k2.cd+2*k3.cd+k4.cd),
-			y.w + h/6*(k1.w+2*k2.w+2*k3.w+k4.w),
-		}
-	}
-	return y
-}
-
 // ufCase is one operating point of the reference integration.
 type ufCase struct {
 	op core.Operating
@@ -107,32 +82,32 @@ func ufIntegrate(a core.Arrangement, c ufCase) ufOutlets {
 	}
 	qbAt := func(x float64) float64 { return op.QB - qf*x }
 	if a == core.Cocurrent {
-		f := func(x float64, y ufState) ufState {
+		f := func(x float64, y balance) balance {
 			n := flux(y.cb, y.cd)
-			return ufState{(qf*y.cb - n) / qbAt(x), (n - qf*y.cd) / (op.QD + qf*x), n}
+			return balance{(qf*y.cb - n) / qbAt(x), (n - qf*y.cd) / (op.QD + qf*x), n}
 		}
-		y := ufRK4(ufState{op.CBi, op.CDi, 0}, f, n)
+		y := rk4Along(balance{op.CBi, op.CDi, 0}, f, n)
 		return ufOutlets{y.cb, y.cd, y.w}
 	}
 	qdAt := func(x float64) float64 { return op.QD + qf*(1-x) }
-	counter := func(x float64, y ufState) ufState {
+	counter := func(x float64, y balance) balance {
 		n := flux(y.cb, y.cd)
-		return ufState{(qf*y.cb - n) / qbAt(x), (qf*y.cd - n) / qdAt(x), n}
+		return balance{(qf*y.cb - n) / qbAt(x), (qf*y.cd - n) / qdAt(x), n}
 	}
 	if op.QD+qf-op.QB >= 0 {
 		// From the blood inlet: guess CDo, match CD(1) = CDi.
-		run := func(g float64) ufState { return ufRK4(ufState{op.CBi, g, 0}, counter, n) }
+		run := func(g float64) balance { return rk4Along(balance{op.CBi, g, 0}, counter, n) }
 		g := affineRoot(op.CDi, op.CBi, func(g float64) float64 { return run(g).cd - op.CDi })
 		y := run(g)
 		return ufOutlets{y.cb, g, y.w}
 	}
 	// From the blood outlet, sigma = 1 - s: guess CBo, match CB = CBi at
 	// the blood inlet. W accumulates the same flux.
-	back := func(x float64, y ufState) ufState {
+	back := func(x float64, y balance) balance {
 		d := counter(1-x, y)
-		return ufState{-d.cb, -d.cd, d.w}
+		return balance{-d.cb, -d.cd, d.w}
 	}
-	run := func(g float64) ufState { return ufRK4(ufState{g, op.CDi, 0}, back, n) }
+	run := func(g float64) balance { return rk4Along(balance{g, op.CDi, 0}, back, n) }
 	g := affineRoot(op.CDi, op.CBi, func(g float64) float64 { return run(g).cb - op.CBi })
 	y := run(g)
 	return ufOutlets{g, y.cd, y.w}
