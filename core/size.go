@@ -271,7 +271,7 @@ func (f Filter) resolve(field string, k0 float64) (koa float64, area *float64, e
 			if k0 == 0 {
 				return 0, nil, fieldErrorf(field+".area_m2", "needs K0 to give a KoA: enter K0 or a reference filter, or give this filter's KoA")
 			}
-			koa = k0 * f.AreaM2 * CM2PerM2
+			koa = f.AreaM2 * CM2PerM2 * k0
 		}
 	} else if k0 != 0 {
 		a := AreaM2(koa, k0)
@@ -484,6 +484,9 @@ type SizeSpec struct {
 	QB, QD float64     // mL/min
 	Flow   Arrangement // the arrangement the filter choice and flow solves use
 	K0     float64     // cm/min; 0: not known (no areas)
+	// Reference, when not nil and K0 is 0, is a filter of the same
+	// membrane family (its KoA and area) that gives K0 (K0FromReference).
+	Reference *Filter
 	// MarginPercent is headroom on KoA: a filter qualifies when its KoA is
 	// at least the required KoA times (1 + MarginPercent/100).
 	MarginPercent float64
@@ -562,6 +565,9 @@ type CurrentFilter struct {
 // those of the chosen arrangement (Flow); both arrangements are side by
 // side in Countercurrent and Cocurrent.
 type Sizing struct {
+	// K0 is the mass transfer coefficient used (cm/min), given or from the
+	// reference filter; null when not known.
+	K0               *float64        `json:"k0"`
 	Flow             string          `json:"flow"`
 	KoA              float64         `json:"koa"`
 	AreaM2           *float64        `json:"area_m2,omitempty"`
@@ -586,6 +592,9 @@ func Size(s SizeSpec) (Sizing, error) {
 	if err := s.validate(); err != nil {
 		return Sizing{}, err
 	}
+	if s.Reference != nil {
+		s.K0, _ = K0FromReference(s.Reference.KoA, s.Reference.AreaM2)
+	}
 	koa, err := sizeKoA(s.Flow, s.QB, s.QD, s.Target)
 	if err != nil {
 		return Sizing{}, err
@@ -600,6 +609,10 @@ func Size(s SizeSpec) (Sizing, error) {
 		Cocurrent:        s.arrangement(Cocurrent),
 	}
 	out.AreaM2 = s.area(koa)
+	if s.K0 != 0 {
+		k0 := s.K0
+		out.K0 = &k0
+	}
 
 	filters := make([]resolvedFilter, len(s.Filters))
 	for i, f := range s.Filters {
@@ -633,7 +646,8 @@ func (s SizeSpec) resolveFilter(field string, f Filter, i int) (resolvedFilter, 
 	return resolvedFilter{label, koa, area}, err
 }
 
-// validate checks every input in request order.
+// validate checks every input in request order; with a reference filter
+// it works on the K0 that the reference gives.
 func (s SizeSpec) validate() error {
 	if err := checkTarget(s.Target); err != nil {
 		return err
@@ -651,6 +665,16 @@ func (s SizeSpec) validate() error {
 		if err := checkK0("k0", s.K0); err != nil {
 			return err
 		}
+	}
+	if s.Reference != nil {
+		if s.K0 != 0 {
+			return fieldErrorf("reference", "give K0 or a reference filter, not both")
+		}
+		k0, err := K0FromReference(s.Reference.KoA, s.Reference.AreaM2)
+		if err != nil {
+			return err
+		}
+		s.K0 = k0
 	}
 	switch m := s.MarginPercent; {
 	case math.IsNaN(m) || math.IsInf(m, 0):

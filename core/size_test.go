@@ -4,6 +4,7 @@ import (
 	"errors"
 	"fmt"
 	"math"
+	"reflect"
 	"strings"
 	"testing"
 
@@ -610,6 +611,20 @@ func TestSizeIssueExample(t *testing.T) {
 	}
 }
 
+// A reference filter gives K0 (K0FromReference), and the answer is the
+// one with that K0 given.
+func TestSizeReference(t *testing.T) {
+	spec := filtersSpec(10)
+	spec.K0, spec.Reference = 0, &core.Filter{KoA: 800, AreaM2: 1.6}
+	got, err := core.Size(spec)
+	k0, _ := core.K0FromReference(800, 1.6)
+	spec.K0, spec.Reference = k0, nil
+	want, _ := core.Size(spec)
+	if err != nil || got.K0 == nil || *got.K0 != k0 || !reflect.DeepEqual(got, want) {
+		t.Errorf("Size(reference 800 mL/min, 1.6 m^2) = %+v, %v, want Size(K0 %g) = %+v", got, err, k0, want)
+	}
+}
+
 // filtersSpec is the issue example with a list of filters: areas at K0
 // 0.05 cm/min give KoA = 0.05 x area x 1e4 (1.4 m^2 -> 700, 2.0 -> 1000
 // mL/min; by hand).
@@ -857,6 +872,9 @@ var badSizes = []struct {
 	{func(s *core.SizeSpec) { s.K0 = -0.05 }, "k0", "greater than 0"},
 	{func(s *core.SizeSpec) { s.K0 = 50 }, "k0", "outside any membrane"},
 	{func(s *core.SizeSpec) { s.K0 = math.NaN() }, "k0", "finite"},
+	{func(s *core.SizeSpec) { s.Reference = &core.Filter{KoA: 800, AreaM2: 1.6} }, "reference", "not both"},
+	{func(s *core.SizeSpec) { s.K0, s.Reference = 0, &core.Filter{AreaM2: 1.6} }, "reference.koa", "greater than 0"},
+	{func(s *core.SizeSpec) { s.K0, s.Reference = 0, &core.Filter{KoA: 800, AreaM2: 1e-5} }, "reference", "K0 = 8000"},
 	{func(s *core.SizeSpec) { s.MarginPercent = -1 }, "margin_percent", "from 0 to 1000"},
 	{func(s *core.SizeSpec) { s.MarginPercent = 1e4 }, "margin_percent", "from 0 to 1000"},
 	{func(s *core.SizeSpec) { s.MarginPercent = math.Inf(1) }, "margin_percent", "finite"},

@@ -207,3 +207,64 @@ func BenchmarkBridgeCompareWithSweep(b *testing.B) {
 		call(b, "compare", `{"qb":300,"qd":500,"koa":800,"sweep":{}}`)
 	}
 }
+
+func TestSizeThroughJS(t *testing.T) {
+	got := call(t, "size", `{"target_clearance":250,"qb":300,"qd":500,"flow":"countercurrent","k0":0.05}`)
+	var resp struct {
+		OK     bool    `json:"ok"`
+		KoA    float64 `json:"koa"`
+		AreaM2 float64 `json:"area_m2"`
+	}
+	if err := json.Unmarshal([]byte(got), &resp); err != nil {
+		t.Fatalf("size: %v in %s", err, got)
+	}
+	// The bridge must hand back exactly what core computes natively.
+	want, err := core.Size(core.SizeSpec{Target: 250, QB: 300, QD: 500, Flow: core.Countercurrent, K0: 0.05})
+	if err != nil {
+		t.Fatal(err)
+	}
+	if !resp.OK || resp.KoA != want.KoA || resp.AreaM2 != *want.AreaM2 {
+		t.Errorf("size through JS = %s, want KoA %v and area %v as core.Size gives", got, want.KoA, *want.AreaM2)
+	}
+}
+
+func TestSizeErrorsThroughJS(t *testing.T) {
+	for _, tc := range []struct {
+		request, field string
+		limit          float64 // 0: no limit
+	}{
+		// The co-current ceiling at QB 300, QD 500 is 300 x 500/800 = 187.5 (by hand).
+		{`{"target_clearance":250,"qb":300,"qd":500,"flow":"cocurrent"}`, "target_clearance", 187.5},
+		{`{"target_clearance":250,"qb":300,"qd":500,"flow":"sideways"}`, "flow", 0},
+		{`{"target_clearance":250,"qb":300,"qd":500,"filters":[{"label":"a"}]}`, "filters.0.koa", 0},
+		{`{"target_clearance":250,"qb":300}`, "qd", 0},
+	} {
+		s := call(t, "size", tc.request)
+		f := decodeFailure(t, s)
+		var withLimit struct {
+			Error struct {
+				Limit *float64 `json:"limit"`
+			} `json:"error"`
+		}
+		if err := json.Unmarshal([]byte(s), &withLimit); err != nil {
+			t.Fatal(err)
+		}
+		if f.Error.Field != tc.field {
+			t.Errorf("size(%s) field = %q, want %q", tc.request, f.Error.Field, tc.field)
+		}
+		if l := withLimit.Error.Limit; (tc.limit == 0) != (l == nil) || (l != nil && *l != tc.limit) {
+			t.Errorf("size(%s) limit = %v, want %g (0: none)", tc.request, l, tc.limit)
+		}
+	}
+}
+
+// BenchmarkBridgeSize is one input on the sizing view: five filters, the
+// filter in use with both flow solves, and the chart series, in one call.
+func BenchmarkBridgeSize(b *testing.B) {
+	const request = `{"target_clearance":"250","qb":"300","qd":"500","flow":"countercurrent","k0":"0.05","margin_percent":"10",
+		"filters":[{"label":"F14","area_m2":"1.4"},{"label":"F16","area_m2":"1.6"},{"label":"F18","area_m2":"1.8"},{"label":"H","koa":"1100"},{"label":"F21","area_m2":"2.1"}],
+		"current_filter":{"koa":"700"},"sweep":{}}`
+	for b.Loop() {
+		call(b, "size", request)
+	}
+}

@@ -83,20 +83,9 @@ func operating(qb, qd, koa, cbi, cdi Number) (op core.Operating, err error) {
 }
 
 func (s *SweepRequest) spec() (spec core.SweepSpec, err error) {
-	points, err := s.Points.Optional("sweep.points", core.DefaultSweepPoints)
-	if err != nil {
+	if spec.Points, err = sweepPoints("sweep.points", s.Points); err != nil {
 		return spec, err
 	}
-	// The range is checked here, before the conversion to int: an explicit
-	// 0 would read as "default" in core.SweepSpec, and a huge value does not
-	// fit an int.
-	if points < core.MinSweepPoints || points > core.MaxSweepPoints {
-		return spec, fieldErr("sweep.points", fmt.Sprintf("must be a whole number from %d to %d (got %g)", core.MinSweepPoints, core.MaxSweepPoints, points))
-	}
-	if points != float64(int(points)) {
-		return spec, fieldErr("sweep.points", "must be a whole number")
-	}
-	spec.Points = int(points)
 	if spec.QB, err = rangeOf("sweep.qb", s.QB); err != nil {
 		return spec, err
 	}
@@ -105,6 +94,24 @@ func (s *SweepRequest) spec() (spec core.SweepSpec, err error) {
 	}
 	spec.KoA, err = rangeOf("sweep.koa", s.KoA)
 	return spec, err
+}
+
+// sweepPoints reads the number of points of a chart series.
+func sweepPoints(field string, n Number) (int, error) {
+	points, err := n.Optional(field, core.DefaultSweepPoints)
+	if err != nil {
+		return 0, err
+	}
+	// The range is checked here, before the conversion to int: an explicit
+	// 0 would read as "default" in core, and a huge value does not fit an
+	// int.
+	if points < core.MinSweepPoints || points > core.MaxSweepPoints {
+		return 0, fieldErr(field, fmt.Sprintf("must be a whole number from %d to %d (got %g)", core.MinSweepPoints, core.MaxSweepPoints, points))
+	}
+	if points != float64(int(points)) {
+		return 0, fieldErr(field, "must be a whole number")
+	}
+	return int(points), nil
 }
 
 // rangeOf reads an optional [minimum, maximum] pair.

@@ -32,4 +32,5 @@ type Entry struct {
 // README documents them.
 var Entries = []Entry{
 	{"compare", Compare},
+	{"size", Size},
 }
