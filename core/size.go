@@ -249,7 +249,7 @@ type Filter struct {
 }
 
 // resolve returns the filter's KoA and area (nil when not known). field is
-// the prefix of its error fields ("filters.2", "current_filter"); the area
+// the prefix of its error fields ("filters[2]", "current_filter"); the area
 // needs k0 (0 when not known) unless the KoA is given.
 func (f Filter) resolve(field string, k0 float64) (koa float64, area *float64, err error) {
 	switch {
@@ -616,7 +616,7 @@ func Size(s SizeSpec) (Sizing, error) {
 
 	filters := make([]resolvedFilter, len(s.Filters))
 	for i, f := range s.Filters {
-		filters[i], _ = s.resolveFilter(fmt.Sprintf("filters.%d", i), f, i)
+		filters[i], _ = s.resolveFilter(fmt.Sprintf("filters[%d]", i), f, i)
 	}
 	if len(filters) > 0 {
 		out.Choice = s.choose(koa, filters)
@@ -686,7 +686,7 @@ func (s SizeSpec) validate() error {
 		return fieldErrorf("filters", "lists %d filters: at most %d", len(s.Filters), MaxFilters)
 	}
 	for i, f := range s.Filters {
-		field := fmt.Sprintf("filters.%d", i)
+		field := fmt.Sprintf("filters[%d]", i)
 		if n := utf8.RuneCountInString(f.Label); n > MaxLabelLength || !utf8.ValidString(f.Label) {
 			return fieldErrorf(field+".label", "must be valid text of at most %d characters (got %d)", MaxLabelLength, n)
 		}

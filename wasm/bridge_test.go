@@ -236,7 +236,7 @@ func TestSizeErrorsThroughJS(t *testing.T) {
 		// The co-current ceiling at QB 300, QD 500 is 300 x 500/800 = 187.5 (by hand).
 		{`{"target_clearance":250,"qb":300,"qd":500,"flow":"cocurrent"}`, "target_clearance", 187.5},
 		{`{"target_clearance":250,"qb":300,"qd":500,"flow":"sideways"}`, "flow", 0},
-		{`{"target_clearance":250,"qb":300,"qd":500,"filters":[{"label":"a"}]}`, "filters.0.koa", 0},
+		{`{"target_clearance":250,"qb":300,"qd":500,"filters":[{"label":"a"}]}`, "filters[0].koa", 0},
 		{`{"target_clearance":250,"qb":300}`, "qd", 0},
 	} {
 		s := call(t, "size", tc.request)

@@ -3,6 +3,7 @@ package api
 import (
 	"bytes"
 	"errors"
+	"strconv"
 	"strings"
 
 	"github.com/goccy/go-json"
@@ -88,10 +89,28 @@ func decodeError(request []byte, isObject bool, err error) error {
 		case !isObject:
 			return notObject
 		case errors.As(err, &te) && te.Field != "":
-			return fieldErr(te.Field, "has the wrong type ("+te.Value+")")
+			return fieldErr(listPath(te.Field), "has the wrong type ("+te.Value+")")
 		}
 	}
 	return fieldErr("", "request is not valid JSON: "+strings.TrimPrefix(msg, "json: "))
+}
+
+// listPath writes the decoder's path of a value in a list ("filters.2.koa")
+// the way every other error names it ("filters[2].koa").
+func listPath(path string) string {
+	segments := strings.Split(path, ".")
+	var b strings.Builder
+	for i, s := range segments {
+		if _, err := strconv.Atoi(s); err == nil && i > 0 {
+			b.WriteString("[" + s + "]")
+			continue
+		}
+		if i > 0 {
+			b.WriteByte('.')
+		}
+		b.WriteString(s)
+	}
+	return b.String()
 }
 
 // respond encodes a successful response, or the failure err.

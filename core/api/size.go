@@ -131,7 +131,7 @@ func (r *SizeRequest) spec() (s core.SizeSpec, err error) {
 	if r.Filters != nil {
 		s.Filters = make([]core.Filter, len(r.Filters))
 		for i := range r.Filters {
-			if s.Filters[i], err = r.Filters[i].filter(fmt.Sprintf("filters.%d", i)); err != nil {
+			if s.Filters[i], err = r.Filters[i].filter(fmt.Sprintf("filters[%d]", i)); err != nil {
 				return s, err
 			}
 		}
