@@ -1,6 +1,7 @@
 package core_test
 
 import (
+	"encoding/json"
 	"errors"
 	"fmt"
 	"math"
@@ -854,6 +855,48 @@ func TestSizeSweepSaturated(t *testing.T) {
 	}
 	if !allFinite(s.Sweep.Countercurrent) || len(s.Sweep.Countercurrent.Target) < 2 {
 		t.Errorf("Size(tiny flows).Sweep.Countercurrent = %+v, want finite points", s.Sweep.Countercurrent)
+	}
+}
+
+// Seeded random sizing questions across the accepted bounds (flows 1e-6
+// to 1e5 mL/min, targets from 1e-9 of the ceiling to within 1e-12 of it,
+// K0 1e-6 to 10 cm/min, filters and the filter in use from 1e-3 to 1e8
+// mL/min): every answer is finite (encoding/json refuses NaN and
+// infinities), or a refusal of the target beyond MaxKoA; the requested
+// arrangement is reachable, counter-current never needs more KoA than
+// co-current, and the flow solves reach the target or say why not.
+func TestSizePropertyFinite(t *testing.T) {
+	r := newRand()
+	for range 1500 {
+		spec := core.SizeSpec{
+			QB: logUniform(r, core.MinFlow, core.MaxFlow), QD: logUniform(r, core.MinFlow, core.MaxFlow),
+			Flow: core.Arrangements[r.IntN(2)], K0: logUniform(r, core.MinK0, core.MaxK0),
+			MarginPercent: 100 * r.Float64(), Sweep: &core.SizeSweepSpec{Points: 2 + r.IntN(200)},
+		}
+		ceiling := core.Ceiling(spec.Flow, spec.QB, spec.QD)
+		spec.Target = ceiling * (1 - logUniform(r, 1e-12, 1))
+		for range r.IntN(6) {
+			spec.Filters = append(spec.Filters, core.Filter{KoA: logUniform(r, 1e-3, core.MaxKoA)})
+		}
+		spec.Current = &core.Filter{KoA: logUniform(r, 1e-3, core.MaxKoA)}
+		s, err := core.Size(spec)
+		if err != nil {
+			if fieldOf(err) != "target_clearance" || !strings.Contains(err.Error(), "beyond any filter") {
+				t.Errorf("Size(%+v) error %v, want a result or the MaxKoA refusal", spec, err)
+			}
+			continue
+		}
+		if _, err := json.Marshal(s); err != nil {
+			t.Errorf("Size(%+v) = %+v: not finite (%v)", spec, s, err)
+		}
+		if !(s.KoA > 0 && s.KoA <= core.MaxKoA) || (s.Countercurrent.Reachable && s.Cocurrent.Reachable && *s.Countercurrent.KoA > *s.Cocurrent.KoA*(1+1e-12)) {
+			t.Errorf("Size(%+v): KoA %g, counter-current %v, co-current %v", spec, s.KoA, s.Countercurrent.KoA, s.Cocurrent.KoA)
+		}
+		for _, a := range []core.FlowAnswer{s.Current.QD, s.Current.QB} {
+			if a.OK == (a.Error != nil) || (a.OK && *a.Clearance < spec.Target) || (!a.OK && (a.Error.Limit == nil || *a.Error.Limit >= spec.Target)) {
+				t.Errorf("Size(%+v) flow solve %+v (error %+v): want a flow reaching the target or an error with a lower limit", spec, a, a.Error)
+			}
+		}
 	}
 }
 
