@@ -268,3 +268,82 @@ func BenchmarkBridgeSize(b *testing.B) {
 		call(b, "size", request)
 	}
 }
+
+// The field checks through JavaScript: each answer must be exactly what
+// the API computes natively from the same request.
+
+const (
+	checkRequest       = `{"qb":300,"qd":500,"qf":10,"cbi":100,"cbo":"19,0","cdo":46.3,"koa":800}`
+	checkUncertainty   = `{"qb":300,"qd":500,"qf":10,"cbi":100,"cbo":19,"cdo":46.3,"koa":800,"concentration_uncertainty_percent":2,"concentration_uncertainty_floor":0.5,"flow_uncertainty_percent":3}`
+	dialysanceRequest  = `{"qd":500,"qf":10,"cdi1":15,"cdo1":14.6,"cdi2":14,"cdo2":14.2,"qb":300,"koa":800}`
+	flowcheckRequest   = `{"set_flow":300,"seconds":60,"volume":"296","tolerance_percent":10,"circuit":"blood"}`
+	flowcheckByMass    = `{"set_flow":500,"seconds":300,"mass":2490,"density":"0,99333","tolerance_percent":5,"circuit":"dialysate"}`
+	checkBadBloodOut   = `{"qb":300,"qd":500,"cbi":100,"cbo":120,"cdo":46.3}`
+	dialysanceSameStep = `{"qd":500,"cdi1":15,"cdo1":14.6,"cdi2":15,"cdo2":14.2}`
+)
+
+func TestFieldChecksThroughJS(t *testing.T) {
+	for _, c := range []struct {
+		name, request string
+		native        func([]byte) []byte
+	}{
+		{"check", checkRequest, api.Check},
+		{"check", checkUncertainty, api.Check},
+		{"dialysance", dialysanceRequest, api.Dialysance},
+		{"flowcheck", flowcheckRequest, api.FlowCheck},
+		{"flowcheck", flowcheckByMass, api.FlowCheck},
+	} {
+		got := call(t, c.name, c.request)
+		want := string(c.native([]byte(c.request)))
+		if got != want || !strings.HasPrefix(got, `{"ok":true`) {
+			t.Errorf("%s(%s) through JS = %s, want %s", c.name, c.request, got, want)
+		}
+	}
+	var resp struct {
+		KoA  *float64 `json:"koa_countercurrent"`
+		None *float64 `json:"koa_cocurrent"`
+	}
+	if err := json.Unmarshal([]byte(call(t, "check", checkRequest)), &resp); err != nil || resp.KoA == nil || resp.None != nil {
+		t.Errorf("check through JS: KoA %v and %v (%v); want a number and null", resp.KoA, resp.None, err)
+	}
+}
+
+func TestFieldCheckErrorsThroughJS(t *testing.T) {
+	for _, c := range []struct{ name, request, field string }{
+		{"check", checkBadBloodOut, "cbo"},
+		{"check", `{"qb":300}`, "qd"},
+		{"dialysance", dialysanceSameStep, "cdi2"},
+		{"flowcheck", `{"set_flow":300,"seconds":60,"tolerance_percent":10}`, "volume"},
+		{"flowcheck", `{"set_flow":300,"seconds":"1,2,3","volume":2,"tolerance_percent":10}`, "seconds"},
+	} {
+		f := decodeFailure(t, call(t, c.name, c.request))
+		if f.Error.Field != c.field {
+			t.Errorf("%s(%s) field = %q, want %q", c.name, c.request, f.Error.Field, c.field)
+		}
+	}
+}
+
+func BenchmarkBridgeCheck(b *testing.B) {
+	for b.Loop() {
+		call(b, "check", checkRequest)
+	}
+}
+
+// BenchmarkBridgeCheckWithUncertainty includes the 4000-draw Monte Carlo.
+func BenchmarkBridgeCheckWithUncertainty(b *testing.B) {
+	for b.Loop() {
+		call(b, "check", checkUncertainty)
+	}
+}
+
+func BenchmarkBridgeDialysance(b *testing.B) {
+	for b.Loop() {
+		call(b, "dialysance", dialysanceRequest)
+	}
+}
+
+func BenchmarkBridgeFlowCheck(b *testing.B) {
+	for b.Loop() {
+		call(b, "flowcheck", flowcheckByMass)
+	}
+}

@@ -33,4 +33,7 @@ type Entry struct {
 var Entries = []Entry{
 	{"compare", Compare},
 	{"size", Size},
+	{"check", Check},
+	{"dialysance", Dialysance},
+	{"flowcheck", FlowCheck},
 }

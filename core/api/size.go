@@ -175,7 +175,10 @@ func (f *FilterRequest) filter(field string) (c core.Filter, err error) {
 func positive(field string, n Number, unit string) (float64, error) {
 	v, given, err := n.value(field)
 	if err == nil && given && v == 0 {
-		err = fieldErr(field, "must be greater than 0 "+unit+" (got 0)")
+		if unit != "" {
+			unit = " " + unit
+		}
+		err = fieldErr(field, "must be greater than 0"+unit+" (got 0)")
 	}
 	return v, err
 }
