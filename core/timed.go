@@ -7,6 +7,7 @@ import (
 
 // Bounds of a timed collection.
 const (
+	MinSeconds       = 1     // s; a shorter collection cannot be timed by hand (and keeps the flow finite)
 	MaxSeconds       = 86400 // one day
 	MaxCollected     = 1e6   // mL or g: far more than any container on a service call
 	MinDensity       = 0.5   // g/mL; water is 0.99-1.00 and dialysate a little more
@@ -89,6 +90,9 @@ func (c Collection) validate() error {
 	}
 	if err := checkBounded("seconds", c.Seconds, MaxSeconds, "s"); err != nil {
 		return err
+	}
+	if c.Seconds < MinSeconds {
+		return fieldErrorf("seconds", "is too short to time by hand (minimum %g s, got %g)", float64(MinSeconds), c.Seconds)
 	}
 	switch {
 	case c.Volume != 0 && c.Mass != 0:

@@ -77,6 +77,7 @@ func TestTimedFlowErrors(t *testing.T) {
 		{"zero time", func(c *core.Collection) { c.Seconds = 0 }, "seconds", "greater than 0"},
 		{"negative time", func(c *core.Collection) { c.Seconds = -60 }, "seconds", "greater than 0"},
 		{"more than a day", func(c *core.Collection) { c.Seconds = 90000 }, "seconds", "out of range"},
+		{"under a second", func(c *core.Collection) { c.Seconds = 0.5 }, "seconds", "too short"},
 		{"negative volume", func(c *core.Collection) { c.Volume = -296 }, "volume", "greater than 0"},
 		{"nothing collected", func(c *core.Collection) { c.Volume = 0 }, "volume", "required"},
 		{"volume and mass", func(c *core.Collection) { c.Mass = 296 }, "mass", "not both"},

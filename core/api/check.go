@@ -55,23 +55,26 @@ func Check(request []byte) []byte {
 }
 
 func (req CheckRequest) read() (m core.Measurement, o core.CheckOptions, err error) {
+	// In the order of the form, so that the first bad field reported is
+	// the first a person meets.
 	for _, f := range []struct {
-		n     Number
-		field string
-		v     *float64
+		n        Number
+		field    string
+		v        *float64
+		optional bool
 	}{
-		{req.QB, "qb", &m.QB}, {req.QD, "qd", &m.QD}, {req.CBi, "cbi", &m.CBi},
-		{req.CBo, "cbo", &m.CBo}, {req.CDo, "cdo", &m.CDo},
+		{req.QB, "qb", &m.QB, false}, {req.QD, "qd", &m.QD, false}, {req.QF, "qf", &m.QF, true},
+		{req.CBi, "cbi", &m.CBi, false}, {req.CBo, "cbo", &m.CBo, false},
+		{req.CDi, "cdi", &m.CDi, true}, {req.CDo, "cdo", &m.CDo, false},
 	} {
-		if *f.v, err = f.n.Required(f.field); err != nil {
+		if f.optional {
+			*f.v, err = f.n.Optional(f.field, 0)
+		} else {
+			*f.v, err = f.n.Required(f.field)
+		}
+		if err != nil {
 			return m, o, err
 		}
-	}
-	if m.QF, err = req.QF.Optional("qf", 0); err != nil {
-		return m, o, err
-	}
-	if m.CDi, err = req.CDi.Optional("cdi", 0); err != nil {
-		return m, o, err
 	}
 	// Validate the measurement first, so that its errors come in the
 	// order of the form, before the settings below it.
