@@ -414,41 +414,17 @@ func withUltrafiltration(kd, qf, qb float64) float64 {
 
 // inSituKoA returns the KoA at which arrangement a has dialysance d at
 // flows qb and qd, and false when d is at or above the arrangement's
-// ceiling, where no finite KoA reaches it. d must be >= 0.
-//
-// The inverses of the effectiveness-NTU relations (Incropera & DeWitt
-// ch. 11, from memory), written so that no difference of nearly equal
-// numbers is formed: with eps = d/Cmin,
-//
-//	counter-current: NTU = ln((1 - eps Cr)/(1 - eps))/(1 - Cr)
-//	               = (log1p(y)/y) d/(Cmin - d),  y = d (1 - Cr)/(Cmin - d)
-//	co-current:      NTU = -ln(1 - eps (1 + Cr))/(1 + Cr) = -log1p(-d/Dmax)/(1 + Cr)
-//
-// with Dmax = Cmin/(1 + Cr) the co-current ceiling and log1p(y)/y = 1 at
-// y = 0 (Cr = 1). KoA = NTU Cmin.
+// ceiling, where no finite KoA reaches it. d must be >= 0. The inverse
+// itself is requiredKoA of size.go (the effectiveness-NTU relations
+// inverted in closed form); here only the reach is decided.
 func inSituKoA(a Arrangement, qb, qd, d float64) (float64, bool) {
 	if d == 0 {
 		return 0, true
 	}
-	cmin, cmax, oneMinusCr := capacities(qb, qd)
-	var ntu float64
-	if a == Cocurrent {
-		ceiling := Ceiling(Cocurrent, qb, qd)
-		if d >= ceiling {
-			return 0, false
-		}
-		ntu = -math.Log1p(-d/ceiling) / (1 + cmin/cmax)
-	} else {
-		headroom := cmin - d
-		if headroom <= 0 {
-			return 0, false
-		}
-		ntu = d / headroom
-		if y := d * oneMinusCr / headroom; y != 0 {
-			ntu *= math.Log1p(y) / y
-		}
+	if d >= Ceiling(a, qb, qd) {
+		return 0, false
 	}
-	koa := ntu * cmin
+	koa := requiredKoA(a, qb, qd, d)
 	if math.IsInf(koa, 0) || math.IsNaN(koa) {
 		// d so close to the ceiling that KoA overflows: no finite filter.
 		return 0, false
