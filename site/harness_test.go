@@ -194,9 +194,8 @@ func openPageOn(t *testing.T, server *testServer, path string) *page {
 	if _, err := chromedp.Call(ctx, network.Enable, network.EnableParams{}); err != nil {
 		t.Fatal(err)
 	}
-	p.do(chromedp.EmulateViewport(1024, 768, chromedp.EmulateLandscape))
-	p.do(chromedp.Navigate(origin + "/" + path))
-	p.waitReady()
+	// Registered before the page loads, so that a page that never gets
+	// ready still reports why.
 	t.Cleanup(func() {
 		// Let late events arrive before judging.
 		time.Sleep(100 * time.Millisecond)
@@ -206,6 +205,9 @@ func openPageOn(t *testing.T, server *testServer, path string) *page {
 			t.Error(f)
 		}
 	})
+	p.do(chromedp.EmulateViewport(1024, 768, chromedp.EmulateLandscape))
+	p.do(chromedp.Navigate(origin + "/" + path))
+	p.waitReady()
 	return p
 }
 

@@ -14,9 +14,15 @@ const AXES = {
   koa: { title: 'Clearance against filter KoA', label: 'KoA (mL/min)' },
 };
 
+function withoutSweeps(response) {
+  const { sweeps, ...rest } = response;
+  return rest;
+}
+
 // mountCompare wires the view in root and returns its handle for main.js:
 // snapshot() gives {view, inputs, result} for the last valid calculation
-// (null while an input is in error); restore(inputs) refills and recomputes.
+// (null while an input is in error); restore(inputs) refills and recomputes;
+// inputs() gives the inputs as they stand.
 export function mountCompare(root, engine) {
   const form = root.querySelector('form');
   const results = root.querySelector('.results');
@@ -79,7 +85,10 @@ export function mountCompare(root, engine) {
   update();
   return {
     name: 'compare',
-    snapshot: () => (results.dataset.state === 'ok' && last ? { view: 'compare', inputs: readForm(form), result: last } : null),
+    // The result kept in a record leaves out the chart series (recomputed
+    // from the inputs when the record is opened).
+    snapshot: () => (results.dataset.state === 'ok' && last ? { view: 'compare', inputs: readForm(form), result: withoutSweeps(last) } : null),
+    inputs: () => readForm(form),
     restore(inputs) {
       fillForm(form, inputs);
       update();

@@ -3,32 +3,32 @@
 import { loadEngine } from './engine.js';
 import { mountCompare } from './compare-view.js';
 import { startOffline } from './offline.js';
+import { views, showView, reopenLastView } from './views.js';
+import { startLog } from './log-start.js';
 
 const status = document.getElementById('engine-status');
 
-// views maps a view name to the handle its mount function returned
-// ({name, snapshot(), restore(inputs)}), for features that work across views.
-export const views = new Map();
-
-function showView(name) {
-  for (const view of document.querySelectorAll('section.view')) view.hidden = view.dataset.view !== name;
-  for (const tab of document.querySelectorAll('.view-tab')) tab.setAttribute('aria-pressed', String(tab.dataset.view === name));
-}
-
 async function start() {
+  let version = 'unknown';
   try {
     const engine = await loadEngine();
+    version = engine.version;
     document.getElementById('app-version').textContent = `version ${engine.version}`;
     views.set('compare', mountCompare(document.getElementById('view-compare'), engine));
     for (const tab of document.querySelectorAll('.view-tab')) {
       tab.addEventListener('click', () => showView(tab.dataset.view));
     }
     status.textContent = 'Ready';
-    document.body.dataset.engine = 'ready';
   } catch (err) {
     status.textContent = `The calculator could not start: ${err.message}. Reload the page; if it persists, rebuild or reinstall ClearKit.`;
     document.body.dataset.engine = 'failed';
   }
+  // The service log, the last inputs and the open tab, for every view
+  // registered above (the log works even when the calculator failed, so
+  // that records can still be exported).
+  await startLog(version);
+  reopenLastView();
+  if (document.body.dataset.engine !== 'failed') document.body.dataset.engine = 'ready';
 }
 
 // The service worker is registered once the calculator has started, so that

@@ -1,0 +1,33 @@
+// last-inputs.js: the inputs of every view survive a reload. Each view's
+// inputs are kept in localStorage (store.js) as the user changes them, and
+// put back when the page starts.
+
+import { views, sectionOf, currentInputs } from './views.js';
+import { remember, recall } from './store.js';
+
+// keepInputs restores every registered view's last inputs and keeps them
+// from now on. It calls onRefused once if the browser refuses to keep them.
+export function keepInputs(onRefused) {
+  let refused = !remember('inputs-kept', true);
+  if (refused) onRefused();
+  for (const [name, handle] of views) {
+    const key = `inputs.${name}`;
+    const saved = recall(key);
+    if (saved && typeof saved === 'object') handle.restore(saved);
+    const save = () => {
+      const inputs = currentInputs(handle);
+      if (inputs === undefined || remember(key, inputs) || refused) return;
+      refused = true;
+      onRefused();
+    };
+    let timer = 0;
+    const soon = () => {
+      clearTimeout(timer);
+      timer = setTimeout(save, 200);
+    };
+    const section = sectionOf(name);
+    for (const type of ['input', 'change', 'click']) section.addEventListener(type, soon);
+    // A reload within the delay still keeps the last key.
+    window.addEventListener('pagehide', save);
+  }
+}
