@@ -4,6 +4,8 @@ import (
 	"context"
 	"encoding/json"
 	"fmt"
+	"net/http"
+	"net/http/httptest"
 	"slices"
 	"strings"
 	"testing"
@@ -158,4 +160,49 @@ func TestWorkerAsksOnlyItsOrigin(t *testing.T) {
 	if round.Version != build.Version || !slices.Equal(round.Files, build.Files) {
 		t.Errorf("precache.js round trip = %+v, want %+v", round, build)
 	}
+}
+
+// TestOfflineFromASubfolder serves the page from /tools/clearkit/, as a
+// static host's project folder would: every URL is relative, so it
+// installs, and works offline, there too (also when opened as index.html
+// with a query, as a bookmark might).
+func TestOfflineFromASubfolder(t *testing.T) {
+	build, err := Precache(".")
+	if err != nil {
+		t.Fatal(err)
+	}
+	const prefix = "/tools/clearkit"
+	s := &testServer{files: map[string][]byte{prefix + "/" + PrecacheFile: build.Script()}}
+	files := http.StripPrefix(prefix, Handler("."))
+	s.Server = httptest.NewServer(http.HandlerFunc(func(w http.ResponseWriter, r *http.Request) {
+		if s.offline.Load() {
+			if conn, _, err := w.(http.Hijacker).Hijack(); err == nil {
+				conn.Close()
+			}
+			return
+		}
+		if body, ok := s.files[r.URL.Path]; ok {
+			w.Header().Set("Content-Type", "text/javascript")
+			w.Write(body)
+			return
+		}
+		if !strings.HasPrefix(r.URL.Path, prefix+"/") {
+			http.NotFound(w, r)
+			return
+		}
+		files.ServeHTTP(w, r)
+	}))
+	t.Cleanup(s.Close)
+	p := openPageOn(t, s, "tools/clearkit/")
+	keys := waitOffline(p)
+	if want := []string{"clearkit:" + s.URL + prefix + "/:" + build.Version}; !slices.Equal(keys, want) {
+		t.Errorf("caches %q, want %q", keys, want)
+	}
+	s.offline.Store(true)
+	eval[bool](p, `window.clearkitOldDocument = true`)
+	p.do(chromedp.Navigate(s.URL + prefix + "/index.html?from=bookmark"))
+	p.waitFor(`!window.clearkitOldDocument && document.body && document.body.dataset.engine`, 20*time.Second)
+	p.waitReady()
+	p.typeInto("#compare-qd", "800")
+	wantOutputs(t, p, core.Operating{QB: 300, QD: 800, KoA: 800, CBi: 1})
 }

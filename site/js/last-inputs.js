@@ -13,7 +13,14 @@ export function keepInputs(onRefused) {
   for (const [name, handle] of views) {
     const key = `inputs.${name}`;
     const saved = recall(key);
-    if (saved && typeof saved === 'object') handle.restore(saved);
+    if (saved && typeof saved === 'object') {
+      try {
+        handle.restore(saved);
+      } catch {
+        // Inputs kept by an older version that this one cannot take: the
+        // view keeps its defaults.
+      }
+    }
     const save = () => {
       const inputs = currentInputs(handle);
       if (inputs === undefined || remember(key, inputs) || refused) return;

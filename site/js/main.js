@@ -26,7 +26,12 @@ async function start() {
   // The service log, the last inputs and the open tab, for every view
   // registered above (the log works even when the calculator failed, so
   // that records can still be exported).
-  await startLog(version);
+  try {
+    await startLog(version);
+  } catch (err) {
+    document.querySelector('#view-log [data-log-storage]').textContent = `The service log could not start: ${err.message}. Reload the page.`;
+    document.body.dataset.log = 'failed';
+  }
   reopenLastView();
   if (document.body.dataset.engine !== 'failed') document.body.dataset.engine = 'ready';
 }
