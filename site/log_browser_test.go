@@ -602,3 +602,57 @@ func TestLogStorageFull(t *testing.T) {
 		t.Errorf("records changed from %d to %d by a failed save", kept, n)
 	}
 }
+
+// Records saved in another tab of the page show when the log is opened.
+func TestLogShowsOtherTabsRecords(t *testing.T) {
+	p := openPage(t, "")
+	p.openLog()
+	p.waitLog()
+	if n := len(listed(p)); n != 0 {
+		t.Fatalf("a new page lists %d records", n)
+	}
+	other := openPageOn(t, p.server, "")
+	// It opens on the tab open last (the log): go to the calculator.
+	other.do(chromedp.Click(chromedp.CSS(`.view-tab[data-view="compare"]`)))
+	other.saveRecord("compare", labels{"Other tab", "M-7", "F-60", ""})
+	p.do(chromedp.Click(chromedp.CSS(`.view-tab[data-view="compare"]`)))
+	p.openLog()
+	p.waitFor(`document.querySelectorAll('[data-log-list] > li').length === 1`, 5*time.Second)
+	if items := listed(p); !strings.Contains(items[0], "M-7") {
+		t.Errorf("log lists %q, want the other tab's record", items)
+	}
+}
+
+// A long log lists the newest 100 records and adds 100 at a time.
+func TestLogLongListPages(t *testing.T) {
+	p := openPage(t, "")
+	p.saveRecord("compare", labels{"Site", "M-0", "F-60", ""})
+	eval[bool](p, `(async () => {
+		const store = await import('./js/store.js');
+		const s = await store.openStore();
+		const [r] = await s.all();
+		await s.merge(Array.from({length: 249}, (_, i) => ({...structuredClone(r), id: 'r' + i,
+			labels: {...r.labels, machine_id: 'M-' + (i + 1)}, saved_at: new Date(Date.parse(r.saved_at) - (i + 1) * 60000).toISOString()})));
+		return true;
+	})()`)
+	p.openLog()
+	p.waitFor(`document.querySelectorAll('[data-log-list] > li').length === 100`, 5*time.Second)
+	if got := eval[string](p, `document.querySelector('.log-more').textContent`); got != "Show 100 more (of 150 not shown)" {
+		t.Errorf("more button %q", got)
+	}
+	p.do(chromedp.Click(chromedp.CSS(`.log-more`)))
+	p.do(chromedp.Click(chromedp.CSS(`.log-more`)))
+	p.waitFor(`document.querySelectorAll('[data-log-list] > li').length === 250`, 5*time.Second)
+	if visible(p, ".log-more") {
+		t.Error("the more button shows with every record listed")
+	}
+	// Newest first: the last one listed is the oldest, M-249.
+	if last := eval[string](p, `document.querySelector('[data-log-list] > li:last-child').textContent`); !strings.Contains(last, "M-249") {
+		t.Errorf("last listed %q, want the oldest record M-249", last)
+	}
+	// The search reaches records not listed yet.
+	p.typeInto("#log-search", "m-248")
+	if items := listed(p); len(items) != 1 || !strings.Contains(items[0], "M-248") {
+		t.Errorf("search m-248 lists %d records", len(items))
+	}
+}

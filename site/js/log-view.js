@@ -18,6 +18,8 @@ function size(bytes) {
   return `${(mb / 1024).toFixed(mb < 10240 ? 1 : 0)} GB`;
 }
 
+const PAGE = 100;
+
 // mountLog wires the log view in root. ctx: {store, version}. It returns
 // {refresh(), exportJSON(), onPersistence(state)} for the save dialog.
 export function mountLog(root, ctx) {
@@ -32,6 +34,15 @@ export function mountLog(root, ctx) {
   const fileInput = root.querySelector('[data-log-file]');
   const tools = Object.fromEntries([...root.querySelectorAll('[data-log]')].map((b) => [b.dataset.log, b]));
   let records = [];
+  // The list shows the newest PAGE records (a long log stays quick to
+  // open); "Show more" adds as many again. The search covers all of them.
+  let listed = PAGE;
+  const more = button('', 'secondary log-more', () => {
+    listed += PAGE;
+    render();
+  });
+  more.hidden = true;
+  list.after(more);
   let persisted = 'unknown';
   let inputsRefused = false;
 
@@ -100,7 +111,10 @@ export function mountLog(root, ctx) {
   function render() {
     const q = search.value.trim().toLowerCase();
     const shown = q ? records.filter((r) => LABELS.some((k) => r.labels[k].toLowerCase().includes(q))) : records;
-    list.replaceChildren(...shown.map(item));
+    list.replaceChildren(...shown.slice(0, listed).map(item));
+    const rest = shown.length - listed;
+    more.hidden = rest <= 0;
+    more.textContent = `Show ${Math.min(rest, PAGE)} more (of ${rest} not shown)`;
     if (records.length === 0) count.textContent = 'No records yet. Use “Save to log” in a calculator view.';
     else if (q) count.textContent = `${shown.length} of ${records.length} records match “${search.value.trim()}”.`;
     else count.textContent = records.length === 1 ? '1 record.' : `${records.length} records.`;
@@ -200,7 +214,15 @@ export function mountLog(root, ctx) {
       button(`Delete all ${all.length}`, 'primary danger', () => remove(all, `all ${all.length} records`)),
       button('Keep them', 'secondary', () => say('')));
   });
-  search.addEventListener('input', render);
+  search.addEventListener('input', () => {
+    listed = PAGE;
+    render();
+  });
+  // Another tab of the page may have changed the log meanwhile.
+  root.addEventListener('viewshown', refresh);
+  document.addEventListener('visibilitychange', () => {
+    if (document.visibilityState === 'visible' && !root.hidden) refresh();
+  });
 
   persistence(false).then((state) => {
     persisted = state;

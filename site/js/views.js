@@ -35,13 +35,15 @@ export function viewTitle(name) {
   return tab ? tab.textContent.trim() : name;
 }
 
-// showView shows the view called name (hiding the others) and remembers it
-// as the open tab.
+// showView shows the view called name (hiding the others), remembers it
+// as the open tab, and tells its section with a "viewshown" event.
 export function showView(name) {
-  if (!sectionOf(name)) return;
-  for (const view of document.querySelectorAll('section.view')) view.hidden = view.dataset.view !== name;
+  const section = sectionOf(name);
+  if (!section) return;
+  for (const view of document.querySelectorAll('section.view')) view.hidden = view !== section;
   for (const tab of document.querySelectorAll('.view-tab')) tab.setAttribute('aria-pressed', String(tab.dataset.view === name));
   remember('view', name);
+  section.dispatchEvent(new CustomEvent('viewshown'));
 }
 
 // reopenLastView opens the tab that was open last time.
