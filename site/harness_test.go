@@ -47,6 +47,22 @@ func runWithBrowser(m *testing.M) int {
 		return 1
 	}
 	defer os.RemoveAll(tmp)
+	opts := browserOptions(exe, tmp)
+	allocCtx, cancelAlloc := chromedp.NewExecAllocator(context.Background(), opts...)
+	defer cancelAlloc()
+	ctx, cancel := chromedp.NewContext(allocCtx)
+	defer cancel()
+	if err := chromedp.Do(ctx); err != nil { // start the browser now
+		fmt.Fprintln(os.Stderr, "site tests: Chromium did not start:", err)
+		return 1
+	}
+	browserCtx = ctx
+	return m.Run()
+}
+
+// browserOptions start Chromium at exe headless, with its profile and
+// temporary files in tmp, followed by any extra options.
+func browserOptions(exe, tmp string, extra ...chromedp.ExecAllocatorOption) []chromedp.ExecAllocatorOption {
 	opts := append(chromedp.DefaultExecAllocatorOptions[:],
 		chromedp.ExecPath(exe),
 		chromedp.Headless,
@@ -60,16 +76,7 @@ func runWithBrowser(m *testing.M) int {
 		chromedp.UserDataDir(filepath.Join(tmp, "profile")),
 		chromedp.Env("TMPDIR="+tmp),
 	)
-	allocCtx, cancelAlloc := chromedp.NewExecAllocator(context.Background(), opts...)
-	defer cancelAlloc()
-	ctx, cancel := chromedp.NewContext(allocCtx)
-	defer cancel()
-	if err := chromedp.Do(ctx); err != nil { // start the browser now
-		fmt.Fprintln(os.Stderr, "site tests: Chromium did not start:", err)
-		return 1
-	}
-	browserCtx = ctx
-	return m.Run()
+	return append(opts, extra...)
 }
 
 func chromiumPath() string {

@@ -108,14 +108,7 @@ func TestOfflineInstallThenWorkWithoutNetwork(t *testing.T) {
 func TestOfflineUpdateWaitsForTheUser(t *testing.T) {
 	p := openPage(t, "")
 	waitOffline(p)
-	// A new build: same files, another content hash.
-	next := Build{Version: "0123456789abcdef"}
-	build, err := Precache(".")
-	if err != nil {
-		t.Fatal(err)
-	}
-	next.Files = build.Files
-	p.server.serveFile("/"+PrecacheFile, next.Script())
+	build, next := serveNextBuild(p)
 	p.reload()
 	state := evalTimeout[string](p, `new Promise(r => { const f = () => { const s = document.getElementById('offline-status').dataset.state; s === 'update' ? r(s) : setTimeout(f, 50); }; f(); })`, 30*time.Second)
 	if state != "update" {
@@ -137,6 +130,20 @@ func TestOfflineUpdateWaitsForTheUser(t *testing.T) {
 	if want := []string{cacheName(p.server, next.Version)}; !slices.Equal(keys, want) {
 		t.Errorf("caches after the update %q, want only the new %q", keys, want)
 	}
+}
+
+// serveNextBuild makes the test server announce a new build: the same
+// files under another content hash. It returns the current build and the
+// new one.
+func serveNextBuild(p *page) (current, next Build) {
+	p.t.Helper()
+	current, err := Precache(".")
+	if err != nil {
+		p.t.Fatal(err)
+	}
+	next = Build{Version: "0123456789abcdef", Files: current.Files}
+	p.server.serveFile("/"+PrecacheFile, next.Script())
+	return current, next
 }
 
 // TestWorkerAsksOnlyItsOrigin reads sw.js and the generated file list: every

@@ -4,7 +4,6 @@ import (
 	"context"
 	"net"
 	"net/http"
-	"path/filepath"
 	"sync"
 	"testing"
 	"time"
@@ -43,17 +42,7 @@ func TestNothingLeavesTheOrigin(t *testing.T) {
 	go srv.Serve(ln)
 	t.Cleanup(func() { srv.Close() })
 
-	tmp := t.TempDir()
-	opts := append(chromedp.DefaultExecAllocatorOptions[:],
-		chromedp.ExecPath(chromiumPath()),
-		chromedp.Headless,
-		chromedp.NoSandbox,
-		chromedp.DisableGPU,
-		chromedp.NoFirstRun,
-		chromedp.Flag("disable-quic", true),
-		chromedp.Flag("disable-background-networking", true),
-		chromedp.Flag("disable-component-update", true),
-		chromedp.Flag("disable-sync", true),
+	opts := browserOptions(chromiumPath(), t.TempDir(),
 		// Chromium's own services would use the proxy too. Autofill and the
 		// like are off; the hosts Chromium itself asks with no page open
 		// (measured here with these flags: clients2.google.com,
@@ -63,8 +52,6 @@ func TestNothingLeavesTheOrigin(t *testing.T) {
 		chromedp.Flag("disable-features", "Translate,BlinkGenPropertyTrees,AutofillServerCommunication,OptimizationHints,MediaRouter"),
 		chromedp.ProxyServer("http://"+ln.Addr().String()),
 		chromedp.Flag("proxy-bypass-list", "clients2.google.com;update.googleapis.com;accounts.google.com;*.gvt1.com"),
-		chromedp.UserDataDir(filepath.Join(tmp, "profile")),
-		chromedp.Env("TMPDIR="+tmp),
 	)
 	allocCtx, cancelAlloc := chromedp.NewExecAllocator(context.Background(), opts...)
 	defer cancelAlloc()
@@ -102,13 +89,7 @@ func TestNothingLeavesTheOrigin(t *testing.T) {
 	p.do(chromedp.Click(chromedp.CSS(`[data-log-actions] button.danger`)))
 	p.importFile("log.json", data)
 	// An update: the worker fetches a new build.
-	next := Build{Version: "fedcba9876543210"}
-	b, err := Precache(".")
-	if err != nil {
-		t.Fatal(err)
-	}
-	next.Files = b.Files
-	p.server.serveFile("/"+PrecacheFile, next.Script())
+	serveNextBuild(p)
 	p.reload()
 	p.waitFor(`document.getElementById('offline-status').dataset.state === 'update'`, 30*time.Second)
 	p.server.offline.Store(true)
