@@ -61,9 +61,13 @@ func listed(p *page) []string {
 	return eval[[]string](p, `[...document.querySelectorAll('[data-log-list] > li')].map(li => li.textContent)`)
 }
 
+// openLog shows the log tab and waits until it has read the store.
 func (p *page) openLog() {
 	p.t.Helper()
+	p.waitLog()
+	before := eval[string](p, `document.getElementById('view-log').dataset.refreshed || '0'`)
 	p.do(chromedp.Click(chromedp.CSS(`.view-tab[data-view="log"]`)))
+	p.waitFor(`(document.getElementById('view-log').dataset.refreshed || '0') !== '`+before+`'`, 10*time.Second)
 }
 
 func logMessage(p *page) string {

@@ -5,7 +5,7 @@
 // and when the browser will not keep them.
 
 import { viewTitle } from './views.js';
-import { persistence, usage } from './store.js';
+import { persistence, usage, same } from './store.js';
 import { LABELS, LABEL_NAMES, exportJSON, exportCSV, parseImport, download, ImportError } from './log-file.js';
 import { el, button } from './dom.js';
 import { openRecord, formatTime } from './report.js';
@@ -123,14 +123,22 @@ export function mountLog(root, ctx) {
     tools['delete-all'].disabled = records.length === 0;
   }
 
+  // refresh reads the store again. The list is rebuilt only when the
+  // records changed, so that a button is not replaced under a finger.
+  // root.dataset.refreshed counts the refreshes done (tests wait on it).
+  let refreshes = 0;
   async function refresh() {
+    let changed = true;
     try {
-      records = await store.all();
+      const now = await store.all();
+      changed = !same(now, records);
+      records = now;
     } catch (err) {
       say(`The log could not be read: ${err.message}`, 'error');
     }
-    render();
+    if (changed || refreshes === 0) render();
     await describeStorage();
+    root.dataset.refreshed = String(++refreshes);
   }
 
   function open(record, print) {
