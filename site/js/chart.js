@@ -32,16 +32,22 @@ function axisTicks(hi, count = 5) {
 
 // drawChart fills svg. spec: {x: [], xLabel, yLabel, series: [{values,
 // className, label}], ceilings: [{values, label}], point: {x, ys: []}}.
+// Optional: a series may have its own x; xRange [min, max] and yMax fix
+// the axes (values beyond yMax are clipped at the top); verticals
+// [{x, label}] draws vertical ceiling lines labelled at the top;
+// endLabels: false leaves out the labels at the lines' right ends (and
+// their margin).
 export function drawChart(svg, spec) {
   svg.replaceChildren();
-  const { left, right, top, bottom, width, height } = BOX;
+  const { left, top, bottom, width, height } = BOX;
+  const right = spec.endLabels === false ? 16 : BOX.right;
   const plotW = width - left - right;
   const plotH = height - top - bottom;
   const xs = spec.x;
-  const all = [...spec.series, ...spec.ceilings].flatMap((s) => s.values);
-  const xMin = xs[0];
-  const xMax = xs[xs.length - 1];
-  const yTicks = axisTicks(Math.max(...all, 1) * 1.02);
+  const ceilings = spec.ceilings ?? [];
+  const all = [...spec.series, ...ceilings].flatMap((s) => s.values);
+  const [xMin, xMax] = spec.xRange ?? [xs[0], xs[xs.length - 1]];
+  const yTicks = axisTicks(spec.yMax ?? Math.max(...all, 1) * 1.02);
   const yMax = yTicks[yTicks.length - 1];
   const px = (x) => left + ((x - xMin) / (xMax - xMin)) * plotW;
   const py = (y) => top + plotH - (y / yMax) * plotH;
@@ -59,16 +65,22 @@ export function drawChart(svg, spec) {
   svg.append(el('text', { x: left + plotW / 2, y: height - 6, 'text-anchor': 'middle' }, spec.xLabel));
   svg.append(el('text', { x: 14, y: top + plotH / 2, 'text-anchor': 'middle', transform: `rotate(-90 14 ${top + plotH / 2})` }, spec.yLabel));
 
-  const path = (values) => values.map((y, i) => `${i ? 'L' : 'M'}${px(xs[i]).toFixed(1)} ${py(y).toFixed(1)}`).join('');
+  const path = (values, x = xs) => values.map((y, i) => `${i ? 'L' : 'M'}${px(x[i]).toFixed(1)} ${py(Math.min(y, yMax)).toFixed(1)}`).join('');
   const labels = [];
-  for (const c of spec.ceilings) {
+  for (const c of ceilings) {
     svg.append(el('path', { class: 'ceiling', d: path(c.values) }));
     labels.push({ y: py(c.values[c.values.length - 1]), text: c.label });
   }
+  (spec.verticals ?? []).forEach((v, i) => {
+    if (!(v.x >= xMin && v.x <= xMax)) return;
+    svg.append(el('line', { class: 'ceiling', x1: px(v.x), x2: px(v.x), y1: top, y2: top + plotH, 'data-vertical': v.label }));
+    svg.append(el('text', { x: px(v.x) - 4, y: top + 14 + 15 * i, 'text-anchor': 'end', class: 'vertical-label' }, v.label));
+  });
   for (const s of spec.series) {
-    svg.append(el('path', { class: `series ${s.className}`, d: path(s.values), 'data-series': s.label }));
+    svg.append(el('path', { class: `series ${s.className}`, d: path(s.values, s.x ?? xs), 'data-series': s.label }));
     labels.push({ y: py(s.values[s.values.length - 1]), text: s.label });
   }
+  if (spec.endLabels === false) labels.length = 0;
   // Line-end labels, pushed apart so that none overlaps its neighbour.
   labels.sort((a, b) => a.y - b.y);
   let previous = -Infinity;
@@ -80,6 +92,6 @@ export function drawChart(svg, spec) {
   if (spec.point && spec.point.x >= xMin && spec.point.x <= xMax) {
     const x = px(spec.point.x);
     svg.append(el('line', { class: 'point-line', x1: x, x2: x, y1: top, y2: top + plotH }));
-    for (const y of spec.point.ys) svg.append(el('circle', { class: 'point', cx: x, cy: py(y), r: 6 }));
+    for (const y of spec.point.ys) svg.append(el('circle', { class: 'point', cx: x, cy: py(Math.min(y, yMax)), r: 6 }));
   }
 }

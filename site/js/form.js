@@ -21,17 +21,25 @@ export function fillForm(form, values) {
 
 // showError puts error ({field, message} from the API, or null to clear)
 // next to its field, or at the form's foot when no field of the form has
-// that name.
+// that name. A field fed by several inputs (a [minimum, maximum] pair) has
+// its own [data-error-for] slot, and its inputs carry data-field="FIELD".
 export function showError(form, error) {
   for (const slot of form.querySelectorAll('[data-error-for]')) slot.textContent = '';
   for (const input of form.querySelectorAll('input[name]')) input.removeAttribute('aria-invalid');
   if (!error) return;
   const input = error.field ? form.querySelector(`input[name="${error.field}"]`) : null;
-  if (input) {
-    input.setAttribute('aria-invalid', 'true');
-    const details = input.closest('details');
+  const slot = error.field ? form.querySelector(`[data-error-for="${error.field}"]`) : null;
+  const marked = error.field ? [input, ...form.querySelectorAll(`input[data-field="${error.field}"]`)] : [];
+  for (const el of marked) {
+    if (!el) continue;
+    el.setAttribute('aria-invalid', 'true');
+    const details = el.closest('details');
     if (details) details.open = true;
-    form.querySelector(`[data-error-for="${error.field}"]`).textContent = error.message;
+  }
+  if (slot) {
+    const details = slot.closest('details');
+    if (details) details.open = true;
+    slot.textContent = error.message;
     return;
   }
   const label = error.field ? `${error.field}: ` : '';

@@ -2,6 +2,7 @@
 
 import { loadEngine } from './engine.js';
 import { mountCompare } from './compare-view.js';
+import { mountSize } from './size-view.js';
 import { startOffline } from './offline.js';
 import { views, showView, reopenLastView } from './views.js';
 import { startLog } from './log-start.js';
@@ -15,6 +16,7 @@ async function start() {
     version = engine.version;
     document.getElementById('app-version').textContent = `version ${engine.version}`;
     views.set('compare', mountCompare(document.getElementById('view-compare'), engine));
+    views.set('size', mountSize(document.getElementById('view-size'), engine));
     for (const tab of document.querySelectorAll('.view-tab')) {
       tab.addEventListener('click', () => showView(tab.dataset.view));
     }
