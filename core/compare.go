@@ -6,16 +6,26 @@ import "math"
 const minNormal = 0x1p-1022
 
 // Operating is one operating point of a dialyzer: the flows, the filter's
-// KoA and the inlet concentrations.
+// KoA, the inlet concentrations, the blood and the ultrafiltration.
 type Operating struct {
 	QB  float64 `json:"qb"`  // blood flow, mL/min, > 0
 	QD  float64 `json:"qd"`  // dialysate flow, mL/min, > 0
 	KoA float64 `json:"koa"` // mass transfer-area coefficient, mL/min, >= 0
 	CBi float64 `json:"cbi"` // blood inlet concentration, > 0 (1 for a normalised solute)
 	CDi float64 `json:"cdi"` // dialysate inlet concentration, >= 0 (0 for fresh dialysate)
+	// Blood, when not nil, says that the blood side carries whole blood:
+	// the model then works with the blood-water flow QBW (BloodWaterFlow)
+	// in place of QB, and concentrations are blood-water concentrations.
+	// Nil is an aqueous test solution, QBW = QB.
+	Blood *WholeBlood `json:"blood,omitempty"`
+	// Filtration is the ultrafiltration; its zero value is none. QF must
+	// stay below QBW.
+	Filtration
 }
 
-// Validate reports the first field that cannot be used, by its API name.
+// Validate reports the first field that cannot be used, by its API name,
+// in the order qb, qd, koa, cbi, cdi, hct, plasma_water, red_cell_water,
+// qf, sieving.
 func (op Operating) Validate() error {
 	if err := checkFlow("qb", op.QB); err != nil {
 		return err
@@ -29,7 +39,39 @@ func (op Operating) Validate() error {
 	if err := checkConcentration("cbi", op.CBi, true); err != nil {
 		return err
 	}
-	return checkConcentration("cdi", op.CDi, false)
+	if err := checkConcentration("cdi", op.CDi, false); err != nil {
+		return err
+	}
+	if op.Blood == nil {
+		return op.Filtration.validate(op.QB, "blood flow QB")
+	}
+	if err := op.Blood.Validate(); err != nil {
+		return err
+	}
+	qbw := op.BloodSideFlow()
+	if qbw < MinFlow {
+		return fieldErrorf("qb", "gives a blood-water flow of %g mL/min, too small to compute with (minimum %g)", qbw, MinFlow)
+	}
+	return op.Filtration.validate(qbw, "blood-water flow QBW")
+}
+
+// BloodSideFlow returns the flow the model uses on the blood side, mL/min:
+// QB for an aqueous solution, the blood-water flow
+// QB (Fp (1 - Hct) + Fr Hct) for whole blood.
+func (op Operating) BloodSideFlow() float64 {
+	if op.Blood == nil {
+		return op.QB
+	}
+	return op.QB * op.Blood.WaterFraction()
+}
+
+// model returns op as the flow model sees it: QB replaced by
+// BloodSideFlow and no blood correction left to apply.
+func (op Operating) model() Operating {
+	if op.Blood != nil {
+		op.QB, op.Blood = op.BloodSideFlow(), nil
+	}
+	return op
 }
 
 // drivingFraction returns (CBi - CDi)/CBi, the share of the blood inlet
@@ -38,14 +80,21 @@ func (op Operating) drivingFraction() float64 {
 	return (op.CBi - op.CDi) / op.CBi
 }
 
-// Performance is what one arrangement delivers at an operating point.
+// Performance is what one arrangement delivers at an operating point. QB
+// below is the blood-side flow of the model (Operating.BloodSideFlow).
 type Performance struct {
-	// Clearance K = W/CBi, mL/min. Equal to dialysance when CDi = 0;
-	// negative when CDi > CBi (transfer into the blood).
+	// Clearance K = W/CBi, mL/min: what the in-vitro formula
+	// QB (CBi - CBo)/CBi + QF CBo/CBi gives from the outlets. Equal to
+	// dialysance when CDi = 0 and QF = 0; negative when CDi > CBi
+	// (transfer into the blood).
 	Clearance float64 `json:"clearance"`
-	// Dialysance D = W/(CBi - CDi), mL/min.
+	// Dialysance D, mL/min: with QF = 0, W/(CBi - CDi); in general
+	// -dW/dCDi, the fall in transfer per unit rise of the dialysate inlet
+	// concentration, which is what two dialysate inlet levels measure
+	// (see Transfer).
 	Dialysance float64 `json:"dialysance"`
-	// ExtractionRatio (CBi - CBo)/CBi = K/QB, relative to blood.
+	// ExtractionRatio (CBi - CBo)/CBi, relative to blood: K/QB when
+	// QF = 0, (K - QF)/(QB - QF) in general.
 	ExtractionRatio float64 `json:"extraction_ratio"`
 	// BloodOutlet CBo and DialysateOutlet CDo, in the unit of CBi.
 	BloodOutlet     float64 `json:"cbo"`
@@ -53,10 +102,14 @@ type Performance struct {
 	// TransferRate W, the solute mass removed per minute (unit of CBi x mL/min).
 	TransferRate float64 `json:"transfer_rate"`
 	// LogMeanDifference is the log-mean blood-dialysate concentration
-	// difference, W/KoA; at KoA = 0 it is CBi - CDi.
+	// difference: W/KoA when QF = 0 (CBi - CDi at KoA = 0). With QF > 0 it
+	// is the log-mean of the two end differences (counter-current
+	// CBi - CDo and CBo - CDi, co-current CBi - CDi and CBo - CDo); 0 if
+	// one of them is 0, and their arithmetic mean if they differ in sign
+	// (convection can carry solute against the concentration difference).
 	LogMeanDifference float64 `json:"log_mean_difference"`
 	// ClearanceCeiling and DialysanceCeiling are the limits as KoA grows
-	// without bound (see Ceiling).
+	// without bound (see Ceiling and TransferCeiling).
 	ClearanceCeiling  float64 `json:"clearance_ceiling"`
 	DialysanceCeiling float64 `json:"dialysance_ceiling"`
 }
@@ -66,7 +119,16 @@ func Evaluate(a Arrangement, op Operating) (Performance, error) {
 	if err := op.Validate(); err != nil {
 		return Performance{}, err
 	}
-	return evaluate(a, op), nil
+	return evaluateModel(a, op.model()), nil
+}
+
+// evaluateModel evaluates a (valid) operating point as the model sees it:
+// the closed forms without ultrafiltration, the ultrafiltration model with.
+func evaluateModel(a Arrangement, op Operating) Performance {
+	if op.QF == 0 {
+		return evaluate(a, op)
+	}
+	return evaluateFiltered(a, op, op.Filtration)
 }
 
 func evaluate(a Arrangement, op Operating) Performance {
@@ -102,9 +164,13 @@ type Comparison struct {
 	// GainPercent is the gain relative to co-current, in percent (0 at
 	// KoA = 0, where both arrangements transfer nothing).
 	GainPercent float64 `json:"countercurrent_gain_percent"`
-	// NTU = KoA/min(QB, QD) and FlowRatio Cr = min/max of QB and QD.
+	// NTU = KoA/min(QB, QD) and FlowRatio Cr = min/max of QB and QD,
+	// with QB the blood-side flow of the model.
 	NTU       float64 `json:"ntu"`
 	FlowRatio float64 `json:"flow_ratio"`
+	// QBW is that blood-side flow, mL/min (Operating.BloodSideFlow): QB for
+	// an aqueous solution, the blood-water flow for whole blood.
+	QBW float64 `json:"qbw"`
 }
 
 // Compare evaluates both arrangements at op.
@@ -112,14 +178,16 @@ func Compare(op Operating) (Comparison, error) {
 	if err := op.Validate(); err != nil {
 		return Comparison{}, err
 	}
-	cc, co := evaluate(Countercurrent, op), evaluate(Cocurrent, op)
-	cmin, cmax, _ := capacities(op.QB, op.QD)
+	m := op.model()
+	cc, co := evaluateModel(Countercurrent, m), evaluateModel(Cocurrent, m)
+	cmin, cmax, _ := capacities(m.QB, m.QD)
 	c := Comparison{
 		Countercurrent: cc,
 		Cocurrent:      co,
 		Gain:           cc.Clearance - co.Clearance,
-		NTU:            op.KoA / cmin,
+		NTU:            m.KoA / cmin,
 		FlowRatio:      cmin / cmax,
+		QBW:            m.QB,
 	}
 	// The percentage is taken on dialysance so that it keeps its sign and
 	// meaning whatever the inlet concentrations.

@@ -2,16 +2,71 @@ package core
 
 import "math"
 
-// gaussPoints is the number of nodes of the Gauss-Legendre rule used along
-// the membrane. An n-point rule integrates polynomials of degree 2n - 1
-// exactly; for e^(c t) over a panel of width h its error is about
-// (c h)^(2n) (n!)^4 / ((2n+1) ((2n)!)^3) relative (from the remainder term
-// of Gauss-Legendre quadrature, Abramowitz & Stegun ch. 25, from memory),
-// about 1e-16 for n = 16 and c h = 16.
-const gaussPoints = 16
+// Gauss-Legendre rules for the quadrature along the membrane. An n-point
+// rule integrates polynomials of degree 2n - 1 exactly. Each panel takes
+// the smallest rule whose error is below 1e-17 for two features
+// of the integrand e^A g:
+//
+//   - the exponential: for e^(c t) over a panel of width h the relative
+//     error is about (c h)^(2n) (n!)^4 / ((2n+1) ((2n)!)^3) (from the
+//     remainder term of Gauss-Legendre quadrature, Abramowitz & Stegun
+//     ch. 25, from memory), with c h the change of A across the panel;
+//   - the nearest singularity of the flows 1/QB, 1/QD: for a function
+//     analytic inside the Bernstein ellipse of parameter rho around the
+//     panel the error falls like rho^(-2n) (Trefethen, Approximation
+//     Theory and Approximation Practice, ch. 19; from memory).
+//
+// The largest rule, 16 points, is used when no smaller one meets both; the
+// panels are sized so that it always does (see membrane.integrate).
+var gaussRules = func() []gaussRule {
+	var rules []gaussRule
+	for _, n := range []int{6, 8, 12, 16} {
+		nodes, weights := legendreRule(n)
+		// log of (n!)^4 / ((2n+1) ((2n)!)^3), with logarithms by log1p
+		// (see exp.go: the same on every platform).
+		logFactorial := func(m int) (s float64) {
+			for k := 2; k <= m; k++ {
+				s += math.Log1p(float64(k - 1))
+			}
+			return s
+		}
+		logK := 4*logFactorial(n) - math.Log1p(2*float64(n)) - 3*logFactorial(2*n)
+		rules = append(rules, gaussRule{
+			nodes:     nodes,
+			weights:   weights,
+			maxSpread: expPortable((logTarget - logK) / (2 * float64(n))),
+			minRho:    expPortable(-logTarget / float64(n)),
+		})
+	}
+	return rules
+}()
 
-// gaussNodes and gaussWeights are the rule on [-1, 1].
-var gaussNodes, gaussWeights = legendreRule(gaussPoints)
+// The relative error each panel's rule aims at, 1e-17, and its logarithm.
+const logTarget = -17 * math.Ln10
+
+// gaussRule is an n-point rule on [-1, 1] with the largest change of the
+// exponent (maxSpread = c h) and the smallest Bernstein parameter (minRho)
+// at which its error estimates stay below 1e-17.
+type gaussRule struct {
+	nodes, weights    []float64
+	maxSpread, minRho float64
+}
+
+// ruleFor returns the smallest rule for a panel across which the exponent
+// changes by spread and whose nearest singularity lies at distance d from
+// the panel, of half-width hw.
+func ruleFor(spread, d, hw float64) *gaussRule {
+	// The Bernstein ellipse through a point on the real axis at distance d
+	// beyond an end: rho = delta + sqrt(delta^2 - 1), delta = 1 + d/hw.
+	delta := 1 + d/hw
+	rho := delta + math.Sqrt(delta*delta-1)
+	for i := range gaussRules[:len(gaussRules)-1] {
+		if r := &gaussRules[i]; spread <= r.maxSpread && rho >= r.minRho {
+			return r
+		}
+	}
+	return &gaussRules[len(gaussRules)-1]
+}
 
 // legendreRule returns the n-point Gauss-Legendre nodes (ascending) and
 // weights on [-1, 1]. Each node is a root of the Legendre polynomial P_n,

@@ -16,6 +16,10 @@ type Range struct{ Min, Max float64 }
 // QB 25 to max(600, 2 QB), QD 50 to max(1000, 2 QD), KoA 0 to
 // max(2000, 2 KoA), all mL/min, which cover routine machines (QB 200-500,
 // QD 300-800 mL/min; common practice) with the operating point inside.
+// With ultrafiltration the QB range starts at max(25, 2 QF/w), w the
+// water fraction of the blood (1 for an aqueous solution), so that QF is
+// at most half the blood-side flow anywhere on the chart; a QB range given
+// must keep the blood-side flow above QF.
 type SweepSpec struct {
 	Points      int // 0 means DefaultSweepPoints
 	QB, QD, KoA *Range
@@ -51,9 +55,13 @@ func Sweep(op Operating, spec SweepSpec) (Sweeps, error) {
 	if n < MinSweepPoints || n > MaxSweepPoints {
 		return Sweeps{}, fieldErrorf("sweep.points", "must be a whole number from %d to %d (got %d)", MinSweepPoints, MaxSweepPoints, n)
 	}
-	qb, err := sweepRange("sweep.qb", spec.QB, Range{25, math.Max(600, 2*op.QB)}, checkFlow)
+	water := op.BloodSideFlow() / op.QB
+	qb, err := sweepRange("sweep.qb", spec.QB, Range{math.Max(25, 2*op.QF/water), math.Max(600, 2*op.QB)}, checkFlow)
 	if err != nil {
 		return Sweeps{}, err
+	}
+	if low := qb.Min * water; op.QF > 0 && low-op.QF < MinFlow {
+		return Sweeps{}, fieldErrorf("sweep.qb", "must start where the blood-side flow stays above qf %g mL/min (got %g, giving %.6g)", op.QF, qb.Min, low)
 	}
 	qd, err := sweepRange("sweep.qd", spec.QD, Range{50, math.Max(1000, 2*op.QD)}, checkFlow)
 	if err != nil {
@@ -101,13 +109,24 @@ func series(n int, r Range, at func(float64) Operating) Series {
 		if i == n-1 {
 			x = r.Max
 		}
-		op := at(x)
-		f := op.drivingFraction()
+		op := at(x).model()
 		s.X[i] = x
-		s.Countercurrent[i] = Dialysance(Countercurrent, op.QB, op.QD, op.KoA) * f
-		s.Cocurrent[i] = Dialysance(Cocurrent, op.QB, op.QD, op.KoA) * f
-		s.CountercurrentCeiling[i] = Ceiling(Countercurrent, op.QB, op.QD) * f
-		s.CocurrentCeiling[i] = Ceiling(Cocurrent, op.QB, op.QD) * f
+		s.Countercurrent[i], s.CountercurrentCeiling[i] = clearanceAt(Countercurrent, op)
+		s.Cocurrent[i], s.CocurrentCeiling[i] = clearanceAt(Cocurrent, op)
 	}
 	return s
+}
+
+// clearanceAt returns the clearance of arrangement a at op (as the model
+// sees it) and its ceiling: D (CBi - CDi)/CBi without ultrafiltration,
+// K - D CDi/CBi from Transfer with it.
+func clearanceAt(a Arrangement, op Operating) (k, ceiling float64) {
+	if op.QF == 0 {
+		f := op.drivingFraction()
+		return Dialysance(a, op.QB, op.QD, op.KoA) * f, Ceiling(a, op.QB, op.QD) * f
+	}
+	r := op.CDi / op.CBi
+	kf, d := Transfer(a, op.QB, op.QD, op.KoA, op.Filtration)
+	kc, dc := TransferCeiling(a, op.QB, op.QD, op.QF)
+	return kf - d*r, kc - dc*r
 }

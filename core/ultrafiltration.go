@@ -20,7 +20,10 @@ const DefaultSieving = 1
 
 // Validate reports the first field of f that cannot be used at blood flow
 // qb (a valid flow), by its API name.
-func (f Filtration) Validate(qb float64) error {
+func (f Filtration) Validate(qb float64) error { return f.validate(qb, "blood flow") }
+
+// validate is Validate with the name of the blood-side flow for messages.
+func (f Filtration) validate(qb float64, flow string) error {
 	switch v := f.QF; {
 	case math.IsNaN(v) || math.IsInf(v, 0):
 		return fieldErrorf("qf", "must be a finite number")
@@ -29,7 +32,7 @@ func (f Filtration) Validate(qb float64) error {
 	case v > 0 && v < MinFlow:
 		return fieldErrorf("qf", "is too small to compute with (minimum %g mL/min, or 0 for none; got %g)", MinFlow, v)
 	case qb-v < MinFlow:
-		e := fieldErrorf("qf", "must stay below the blood flow %g mL/min, leaving at least %g mL/min at the filter outlet (got %g)", qb, MinFlow, v)
+		e := fieldErrorf("qf", "must stay below the %s, %.6g mL/min, leaving at least %g mL/min at the filter outlet (got %g)", flow, qb, MinFlow, v)
 		limit := math.Max(0, qb-MinFlow)
 		e.Limit = &limit
 		return e
@@ -93,7 +96,8 @@ func Transfer(a Arrangement, qb, qd, koa float64, f Filtration) (k, d float64) {
 		}
 		return -qb * math.Expm1(f.Sieving*math.Log1p(-f.QF/qb)), 0
 	}
-	k, d = newMembrane(a, qb, qd, koa, f).solve()
+	m := newMembrane(a, qb, qd, koa, f)
+	k, d = m.solve()
 	// Near saturation the quadrature can round to an ulp above the
 	// ceiling, which no filter reaches; the ceiling is exact. (D has no
 	// such bound when S < 1: see TransferCeiling.)
@@ -137,9 +141,9 @@ func TransferCeiling(a Arrangement, qb, qd, qf float64) (k, d float64) {
 // counter-current (W = u(1), the total). Then u' = -alpha(s) u + f(s), a
 // linear equation whose integrating factor e^A, A(s) = integral of alpha,
 // has a closed form (logarithms of the flows, taken with log1p). So u(1)
-// is a quadrature of e^(A(s) - A(1)) f(s), done by a 16-point
-// Gauss-Legendre rule on panels over which A changes by at most 16 and the
-// flows by at most a factor 2, where e^A is within e^-46 of its largest
+// is a quadrature of e^(A(s) - A(1)) f(s), done by Gauss-Legendre rules of
+// 6 to 16 points (quadrature.go) on panels over which A changes by at most
+// 16 and the flows by at most a factor 2, where e^A is within e^-46 of its largest
 // value (the rest adds less than 1e-19 relative). Counter-current the
 // unknown W enters f linearly: one quadrature for the blood inlet, one per
 // unit of W, and superposition (W = u(1)) give it exactly, the two-point
@@ -185,8 +189,8 @@ type membrane struct {
 	qbr, qdr   float64 // QB(tr), QD(tr)
 }
 
-func newMembrane(a Arrangement, qb, qd, koa float64, f Filtration) *membrane {
-	m := &membrane{counter: a == Countercurrent, qb: qb, qd: qd, qf: f.QF, sqf: f.Sieving * f.QF}
+func newMembrane(a Arrangement, qb, qd, koa float64, f Filtration) membrane {
+	m := membrane{counter: a == Countercurrent, qb: qb, qd: qd, qf: f.QF, sqf: f.Sieving * f.QF}
 	// lam = KoA/phi(Pe) = S QF/(1 - e^-Pe): the first form is accurate for
 	// small Pe, the second for large Pe (KoA -> 0 gives Pe = +Inf and
 	// lam = S QF).
@@ -197,7 +201,7 @@ func newMembrane(a Arrangement, qb, qd, koa float64, f Filtration) *membrane {
 	} else {
 		m.lam = m.sqf / oneMinusE
 	}
-	m.lamE = m.lam * math.Exp(-pe)
+	m.lamE = m.lam * expPortable(-pe)
 	m.tr = 1
 	if m.counter {
 		m.delta = qd + f.QF - qb
@@ -228,7 +232,7 @@ const (
 	// out of the quadrature.
 	kernelCut = 46
 	// panelSpread bounds the change of A over one panel.
-	panelSpread = 16
+	panelSpreadDefault = 16
 )
 
 // blood and dialysate return QB and QD at offset tau from tr.
@@ -302,7 +306,7 @@ func (m *membrane) solve() (k, d float64) {
 		return ib, m.qd * iw
 	}
 	// W (e^(A(1) - A(tr)) + Iw) = CBi Ib - QD CDi Iw.
-	den := math.Exp(m.exponent(1-m.tr)) + iw
+	den := expPortable(m.exponent(1-m.tr)) + iw
 	return ib / den, m.qd * iw / den
 }
 
@@ -326,7 +330,7 @@ func (m *membrane) cutoff(end float64) float64 {
 }
 
 // integrate returns the integrals of e^(A - A(tr))/QB and e^(A - A(tr))/QD
-// over the offsets [t0, t1].
+// over the offsets [t0, t1], a piece on which A is monotone.
 func (m *membrane) integrate(t0, t1 float64) (ib, iw float64) {
 	// Where the flows would reach zero, past the ends: QB at
 	// tau = QB(tr)/QF, QD counter-current at QD(tr)/QF, co-current at
@@ -348,7 +352,7 @@ func (m *membrane) integrate(t0, t1 float64) (ib, iw float64) {
 		if end >= t1 || t1-end <= 1e-15*math.Abs(t1-t0) || !(end > t) {
 			end = t1
 		}
-		b, d := m.panel(t, end)
+		b, d := m.panel(m.rule(t, end, left, right), t, end)
 		ib += b
 		iw += d
 		t = end
@@ -356,21 +360,43 @@ func (m *membrane) integrate(t0, t1 float64) (ib, iw float64) {
 	return ib, iw
 }
 
+// rule chooses the Gauss-Legendre rule for the panel [t0, t1] (ruleFor).
+// The exponent's change is bounded by the rate over the panel widened by
+// its half-width on each side, which allows for the curvature of A near a
+// singularity of the flows (and for the reach of the Bernstein ellipse
+// into the complex plane); forcedRule, when set, overrides the choice.
+func (m *membrane) rule(t0, t1, left, right float64) *gaussRule {
+	if forcedRule != nil {
+		return forcedRule
+	}
+	hw := (t1 - t0) / 2
+	lo, hi := t0-hw, t1+hw
+	if hi >= right || lo <= left {
+		return &gaussRules[len(gaussRules)-1]
+	}
+	return ruleFor(2*hw*m.rate(lo, hi), math.Min(right-t1, t0-left), hw)
+}
+
+var panelSpread = float64(panelSpreadDefault)
+
+// forcedRule, for tests, makes every panel use one rule.
+var forcedRule *gaussRule
+
 // panel applies the Gauss-Legendre rule over the offsets [t0, t1].
-func (m *membrane) panel(t0, t1 float64) (ib, iw float64) {
+func (m *membrane) panel(rule *gaussRule, t0, t1 float64) (ib, iw float64) {
 	h, c := (t1-t0)/2, (t0+t1)/2
-	for i, x := range gaussNodes {
+	for i, x := range rule.nodes {
 		tau := c + h*x
-		k := gaussWeights[i] * math.Exp(m.exponent(tau))
+		k := rule.weights[i] * expPortable(m.exponent(tau))
 		ib += k / m.blood(tau)
 		iw += k / m.dialysate(tau)
 	}
 	return h * ib, h * iw
 }
 
-// EvaluateFiltered returns the performance of arrangement a at op with
-// ultrafiltration f. The transfer rate is W = K CBi - D CDi with K and D
-// from Transfer; then
+// evaluateFiltered returns the performance of arrangement a at op (valid,
+// as the model sees it: Operating.model) with ultrafiltration f, QF > 0.
+// The transfer rate is W = K CBi - D CDi with K and D from Transfer; then
 //
 //	Clearance K = W/CBi, as the in-vitro formula gives it from the outlets:
 //	  K = QB (CBi - CBo)/CBi + QF CBo/CBi
@@ -382,38 +408,25 @@ func (m *membrane) panel(t0, t1 float64) (ib, iw float64) {
 //	  CBo - CDo)
 //	ClearanceCeiling and DialysanceCeiling from TransferCeiling.
 //
-// With f.QF = 0 it is Evaluate(a, op).
-//
 // Special cases are:
 //
 //	LogMeanDifference = 0 if an end difference is 0
 //	LogMeanDifference = the arithmetic mean of the end differences if
 //	  they differ in sign (possible only with ultrafiltration, where
 //	  convection can carry solute against the concentration difference)
-func EvaluateFiltered(a Arrangement, op Operating, f Filtration) (Performance, error) {
-	if err := op.Validate(); err != nil {
-		return Performance{}, err
-	}
-	if err := f.Validate(op.QB); err != nil {
-		return Performance{}, err
-	}
-	if f.QF == 0 {
-		return evaluate(a, op), nil
-	}
-	return evaluateFiltered(a, op, f), nil
-}
-
 func evaluateFiltered(a Arrangement, op Operating, f Filtration) Performance {
-	k, d := Transfer(a, op.QB, op.QD, op.KoA, f)
-	kc, dc := TransferCeiling(a, op.QB, op.QD, f.QF)
-	w := k*op.CBi - d*op.CDi
+	op.Filtration = f
+	k, ceiling := clearanceAt(a, op)
+	_, d := Transfer(a, op.QB, op.QD, op.KoA, f)
+	_, dc := TransferCeiling(a, op.QB, op.QD, f.QF)
+	w := k * op.CBi
 	p := Performance{
-		Clearance:         w / op.CBi,
+		Clearance:         k,
 		Dialysance:        d,
 		TransferRate:      w,
 		BloodOutlet:       (op.QB*op.CBi - w) / (op.QB - f.QF),
 		DialysateOutlet:   (op.QD*op.CDi + w) / (op.QD + f.QF),
-		ClearanceCeiling:  kc - dc*op.CDi/op.CBi,
+		ClearanceCeiling:  ceiling,
 		DialysanceCeiling: dc,
 	}
 	p.ExtractionRatio = (p.Clearance - f.QF) / (op.QB - f.QF)

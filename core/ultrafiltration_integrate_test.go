@@ -166,15 +166,15 @@ const (
 func TestTransferMatchesIntegration(t *testing.T) {
 	for _, c := range ufGrid() {
 		for _, a := range core.Arrangements {
-			got, err := core.EvaluateFiltered(a, c.op, c.f)
+			got, err := evalUF(a, c.op, c.f)
 			if err != nil {
-				t.Fatalf("EvaluateFiltered(%v, %+v, %+v) error: %v", a, c.op, c.f, err)
+				t.Fatalf("Evaluate(%v, %+v, %+v) error: %v", a, c.op, c.f, err)
 			}
 			ref := ufIntegrate(a, c)
 			check := func(what string, g, w, floor float64) {
 				t.Helper()
 				if math.Abs(g-w) > ufIntegrationRel*math.Abs(w)+floor {
-					t.Errorf("EvaluateFiltered(%v, %+v, %+v).%s = %.17g, want %.17g (RK4; rel err %.2g)", a, c.op, c.f, what, g, w, relErr(g, w))
+					t.Errorf("Evaluate(%v, %+v, %+v).%s = %.17g, want %.17g (RK4; rel err %.2g)", a, c.op, c.f, what, g, w, relErr(g, w))
 				}
 			}
 			op, qf := c.op, c.f.QF

@@ -21,6 +21,12 @@ import (
 // Artif Organs; abstract).
 var routineFiltration = core.Filtration{QF: 10, Sieving: 1}
 
+// evalUF is core.Evaluate at op with ultrafiltration f.
+func evalUF(a core.Arrangement, op core.Operating, f core.Filtration) (core.Performance, error) {
+	op.Filtration = f
+	return core.Evaluate(a, op)
+}
+
 // randomFiltered draws an operating point over the whole accepted range:
 // flows 1e-3 to 1e5 mL/min, KoA 0 (one in twenty) or 1e-3 to 1e8 mL/min,
 // filtration fraction QF/QB log-uniform from 1e-8 to 0.99, S uniform on
@@ -296,7 +302,7 @@ func TestTransferApproximations(t *testing.T) {
 // (CDi1 - CDi2) (the ion mass balance in REFERENCES), while the published
 // form (QD + QF)(1 - (CDo1 - CDo2)/(CDi1 - CDi2)) (Goldau et al., Artif
 // Organs 2002, abstract; authors from memory) gives D + QF.
-func TestEvaluateFilteredInVitro(t *testing.T) {
+func TestEvaluateFiltrationInVitro(t *testing.T) {
 	r := newRand()
 	for range 1000 {
 		op, f := randomFiltered(r)
@@ -305,11 +311,11 @@ func TestEvaluateFilteredInVitro(t *testing.T) {
 		}
 		op.CBi = logUniform(r, 1e-2, 1e2)
 		for _, a := range core.Arrangements {
-			fresh, err := core.EvaluateFiltered(a, op, f)
+			fresh, err := evalUF(a, op, f)
 			if err != nil {
-				t.Fatalf("EvaluateFiltered(%v, %+v, %+v) error: %v", a, op, f, err)
+				t.Fatalf("Evaluate(%v, %+v, %+v) error: %v", a, op, f, err)
 			}
-			call := fmt.Sprintf("EvaluateFiltered(%v, %+v, %+v)", a, op, f)
+			call := fmt.Sprintf("Evaluate(%v, %+v, %+v)", a, op, f)
 			qbo, qdo := op.QB-f.QF, op.QD+f.QF
 			// Each formula below forms a difference of outlet terms whose
 			// rounding is about 1e-16 of QB CBi.
@@ -326,9 +332,9 @@ func TestEvaluateFilteredInVitro(t *testing.T) {
 			// Two dialysate inlet levels.
 			used := op
 			used.CDi = 0.5 * op.CBi
-			p2, err := core.EvaluateFiltered(a, used, f)
+			p2, err := evalUF(a, used, f)
 			if err != nil {
-				t.Fatalf("EvaluateFiltered(%v, %+v, %+v) error: %v", a, used, f, err)
+				t.Fatalf("Evaluate(%v, %+v, %+v) error: %v", a, used, f, err)
 			}
 			// Both forms are differences of two terms of size QD.
 			ratio := (p2.DialysateOutlet - fresh.DialysateOutlet) / (used.CDi - op.CDi)
@@ -350,17 +356,17 @@ func TestEvaluateFilteredInVitro(t *testing.T) {
 	}
 }
 
-// EvaluateFiltered with QF = 0 is Evaluate; with a tiny QF its log-mean
+// Evaluate with QF = 0 is the ideal model; with a tiny QF its log-mean
 // difference tends to the ideal model's (W/KoA there).
-func TestEvaluateFilteredContinuity(t *testing.T) {
+func TestEvaluateFiltrationContinuity(t *testing.T) {
 	for _, op := range []core.Operating{routine, {QB: 450, QD: 700, KoA: 1300, CBi: 12, CDi: 1.5}, {QB: 250, QD: 250, KoA: 500, CBi: 1}} {
 		for _, a := range core.Arrangements {
 			want, _ := core.Evaluate(a, op)
-			got, err := core.EvaluateFiltered(a, op, core.Filtration{QF: 0, Sieving: 1})
+			got, err := evalUF(a, op, core.Filtration{QF: 0, Sieving: 1})
 			if err != nil || got != want {
-				t.Errorf("EvaluateFiltered(%v, %+v, QF 0) = %+v, %v, want Evaluate's %+v", a, op, got, err, want)
+				t.Errorf("Evaluate(%v, %+v, QF 0) = %+v, %v, want Evaluate's %+v", a, op, got, err, want)
 			}
-			got, err = core.EvaluateFiltered(a, op, core.Filtration{QF: core.MinFlow, Sieving: 1})
+			got, err = evalUF(a, op, core.Filtration{QF: core.MinFlow, Sieving: 1})
 			if err != nil {
 				t.Fatal(err)
 			}
@@ -379,7 +385,7 @@ func TestEvaluateFilteredContinuity(t *testing.T) {
 				{"DialysanceCeiling", got.DialysanceCeiling, want.DialysanceCeiling},
 			} {
 				if !tolerance(c.got, c.want, 2e-8) {
-					t.Errorf("EvaluateFiltered(%v, %+v, QF 1e-6).%s = %.17g, want %.17g within 2e-8", a, op, c.what, c.got, c.want)
+					t.Errorf("Evaluate(%v, %+v, QF 1e-6).%s = %.17g, want %.17g within 2e-8", a, op, c.what, c.got, c.want)
 				}
 			}
 		}
@@ -413,8 +419,8 @@ func TestFiltrationValidate(t *testing.T) {
 		if c.limitPresent != (fe.Limit != nil) || c.limitPresent && *fe.Limit != c.limit {
 			t.Errorf("%+v.Validate(300) limit %v, want %v (present %v)", c.f, fe.Limit, c.limit, c.limitPresent)
 		}
-		if _, err := core.EvaluateFiltered(core.Countercurrent, routine, c.f); fieldOf(err) != c.field {
-			t.Errorf("EvaluateFiltered(%+v, %+v) error = %v, want field %q", routine, c.f, err, c.field)
+		if _, err := evalUF(core.Countercurrent, routine, c.f); fieldOf(err) != c.field {
+			t.Errorf("Evaluate(%+v, %+v) error = %v, want field %q", routine, c.f, err, c.field)
 		}
 	}
 	for _, f := range []core.Filtration{{0, 1}, {0, 0}, {core.MinFlow, 1}, {300 - 2*core.MinFlow, 0}, {150, 0.5}} {
@@ -425,8 +431,8 @@ func TestFiltrationValidate(t *testing.T) {
 	// The operating point is checked first.
 	bad := routine
 	bad.QB = 0
-	if _, err := core.EvaluateFiltered(core.Cocurrent, bad, routineFiltration); fieldOf(err) != "qb" {
-		t.Errorf("EvaluateFiltered(%+v, %+v) error = %v, want field qb", bad, routineFiltration, err)
+	if _, err := evalUF(core.Cocurrent, bad, routineFiltration); fieldOf(err) != "qb" {
+		t.Errorf("Evaluate(%+v, %+v) error = %v, want field qb", bad, routineFiltration, err)
 	}
 }
 

@@ -133,6 +133,42 @@ func TestCompareThroughJS(t *testing.T) {
 	}
 }
 
+// Ultrafiltration and whole blood through JavaScript: the bridge hands
+// back, byte for byte, what the API computes natively, and the numbers are
+// core.Compare's at the blood-water flow (258.84 mL/min at a haematocrit
+// of 32 %, bloodwater_test.go).
+func TestCompareConditionsThroughJS(t *testing.T) {
+	for _, req := range []string{
+		`{"qb":300,"qd":500,"koa":800,"qf":10,"hct":32,"sweep":{}}`,
+		`{"qb":"250","qd":"600,5","koa":"1100","qf":"20,5","sieving":"0,7","hct":"40","plasma_water":"0,94","red_cell_water":"0,7"}`,
+	} {
+		got := call(t, "compare", req)
+		if native := string(api.Compare([]byte(req))); got != native {
+			t.Errorf("compare(%s) through JS = %s, natively %s", req, got, native)
+		}
+	}
+	got := call(t, "compare", `{"qb":300,"qd":500,"koa":800,"qf":10,"hct":32}`)
+	var resp struct {
+		OK bool `json:"ok"`
+		core.Comparison
+	}
+	if err := json.Unmarshal([]byte(got), &resp); err != nil {
+		t.Fatalf("compare: %v in %s", err, got)
+	}
+	b := core.DefaultWholeBlood(32)
+	want, err := core.Compare(core.Operating{QB: 300, QD: 500, KoA: 800, CBi: 1, Blood: &b, Filtration: core.Filtration{QF: 10, Sieving: 1}})
+	if err != nil {
+		t.Fatal(err)
+	}
+	if !resp.OK || resp.Comparison != want {
+		t.Errorf("compare through JS = %s, want the values of core.Compare %+v", got, want)
+	}
+	f := decodeFailure(t, call(t, "compare", `{"qb":300,"qd":500,"koa":800,"qf":260,"hct":32}`))
+	if f.Error.Field != "qf" || !strings.Contains(f.Error.Message, "blood-water flow") {
+		t.Errorf("compare with qf above QBW: error %+v, want field qf about the blood-water flow", f.Error)
+	}
+}
+
 func TestErrorShapes(t *testing.T) {
 	for _, tc := range []struct{ request, field string }{
 		{`{"qb":-1,"qd":500,"koa":800}`, "qb"},
@@ -345,5 +381,14 @@ func BenchmarkBridgeDialysance(b *testing.B) {
 func BenchmarkBridgeFlowCheck(b *testing.B) {
 	for b.Loop() {
 		call(b, "flowcheck", flowcheckByMass)
+	}
+}
+
+// BenchmarkBridgeCompareFiltrationWithSweep is the page's chart request
+// with ultrafiltration and whole blood: compare plus 3 sweeps of 101
+// points, both arrangements, through JavaScript.
+func BenchmarkBridgeCompareFiltrationWithSweep(b *testing.B) {
+	for b.Loop() {
+		call(b, "compare", `{"qb":300,"qd":500,"koa":800,"qf":10,"hct":32,"sweep":{}}`)
 	}
 }

@@ -13,6 +13,7 @@ type CompareRequest struct {
 	KoA Number `json:"koa"` // required, mL/min
 	CBi Number `json:"cbi"` // optional, default 1
 	CDi Number `json:"cdi"` // optional, default 0
+	Conditions
 	// Sweep, when present (even {}), adds the chart series.
 	Sweep *SweepRequest `json:"sweep"`
 }
@@ -41,6 +42,9 @@ func Compare(request []byte) []byte {
 	}
 	op, err := operating(req.QB, req.QD, req.KoA, req.CBi, req.CDi)
 	if err != nil {
+		return failure(err)
+	}
+	if err := req.Conditions.apply(&op); err != nil {
 		return failure(err)
 	}
 	c, err := core.Compare(op)

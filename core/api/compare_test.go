@@ -22,14 +22,15 @@ import (
 const routineRequest = `{"qb":300,"qd":500,"koa":800}`
 
 // routine is routineRequest with the defaults filled in (cbi 1, cdi 0).
-var routine = core.Operating{QB: 300, QD: 500, KoA: 800, CBi: 1, CDi: 0}
+var routine = core.Operating{QB: 300, QD: 500, KoA: 800, CBi: 1, CDi: 0, Filtration: core.Filtration{Sieving: core.DefaultSieving}}
 
 // failure is the failed response.
 type failure struct {
 	OK    *bool `json:"ok"`
 	Error *struct {
-		Field   *string `json:"field"`
-		Message *string `json:"message"`
+		Field   *string  `json:"field"`
+		Message *string  `json:"message"`
+		Limit   *float64 `json:"limit"`
 	} `json:"error"`
 }
 
@@ -112,8 +113,8 @@ func sorted(s ...string) []string { return slices.Sorted(slices.Values(s)) }
 // The member names are the README's API section and the json tags of
 // core (compare.go, sweep.go).
 var (
-	topKeys         = sorted("ok", "input", "countercurrent", "cocurrent", "countercurrent_gain", "countercurrent_gain_percent", "ntu", "flow_ratio")
-	inputKeys       = sorted("qb", "qd", "koa", "cbi", "cdi")
+	topKeys         = sorted("ok", "input", "countercurrent", "cocurrent", "countercurrent_gain", "countercurrent_gain_percent", "ntu", "flow_ratio", "qbw")
+	inputKeys       = sorted("qb", "qd", "koa", "cbi", "cdi", "qf", "sieving")
 	performanceKeys = sorted("clearance", "dialysance", "extraction_ratio", "cbo", "cdo", "transfer_rate", "log_mean_difference", "clearance_ceiling", "dialysance_ceiling")
 	sweepsKeys      = sorted("qb", "qd", "koa")
 	seriesKeys      = sorted("x", "countercurrent", "cocurrent", "countercurrent_ceiling", "cocurrent_ceiling")
@@ -166,6 +167,7 @@ func TestCompareNumbers(t *testing.T) {
 		{`{"qb":1e-6,"qd":1e5,"koa":1e8,"cbi":1e9,"cdi":1e9}`, core.Operating{QB: 1e-6, QD: 1e5, KoA: 1e8, CBi: 1e9, CDi: 1e9}},
 		{`{"qb":250,"qd":500,"koa":700,"cbi":1,"cdi":3}`, core.Operating{QB: 250, QD: 500, KoA: 700, CBi: 1, CDi: 3}},
 	} {
+		c.op.Sieving = core.DefaultSieving // the default, echoed
 		got := success(t, c.request)
 		want, err := core.Compare(c.op)
 		if err != nil {
@@ -221,7 +223,7 @@ func TestCompareNumberForms(t *testing.T) {
 		}
 	}
 	req := `{"qb":"300","qd":"500","koa":"800,0","cbi":"2,5","cdi":"0,5"}`
-	want := core.Operating{QB: 300, QD: 500, KoA: 800, CBi: 2.5, CDi: 0.5}
+	want := core.Operating{QB: 300, QD: 500, KoA: 800, CBi: 2.5, CDi: 0.5, Filtration: core.Filtration{Sieving: 1}}
 	if got := success(t, req); got.Input != want {
 		t.Errorf("Compare(%s).input = %+v, want %+v", req, got.Input, want)
 	}
@@ -294,7 +296,7 @@ func TestCompareRequestErrors(t *testing.T) {
 		request, field, word string
 	}{
 		// Unknown and misspelt fields are refused by name.
-		{`{"qb":300,"qd":500,"koa":800,"qf":10}`, "qf", "not a field"},
+		{`{"qb":300,"qd":500,"koa":800,"uf":10}`, "uf", "not a field"},
 		{`{"qb":300,"qd":500,"koa":800,"cdl":0.5}`, "cdl", "not a field"},
 		// Malformed JSON: the request as a whole.
 		{`{"qb":300,"qd":500,"koa":800`, "", "not valid JSON"},

@@ -31,6 +31,8 @@ func TestPropertyCompareMatchesCore(t *testing.T) {
 			QD:  logUniform(core.MinFlow, core.MaxFlow),
 			KoA: logUniform(1e-3, core.MaxKoA),
 			CBi: logUniform(core.MinConcentration, core.MaxConcentration),
+			// The default sieving coefficient, echoed in the input.
+			Filtration: core.Filtration{Sieving: core.DefaultSieving},
 		}
 		op.CDi = op.CBi * 2 * r.Float64()
 		if op.CDi > core.MaxConcentration {

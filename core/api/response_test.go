@@ -154,16 +154,21 @@ func within(x, lo, hi float64) bool {
 	return x >= lo-boundSlack*math.Abs(lo) && x <= hi+boundSlack*math.Abs(hi)
 }
 
-// compareBounds: the echoed input lies within core's bounds; for each
-// arrangement 0 <= D <= its ceiling, with the counter-current ceiling
-// min(QB, QD) and the co-current one QB QD/(QB + QD) (REFERENCES: the
-// KoA -> infinity limits); counter-current D >= co-current D (a fact of the
-// model, property_test.go); K = D (CBi - CDi)/CBi; the outlet
-// concentrations lie between the two inlets (no solute is created: common
-// practice, no source); the sweeps keep the same bounds point by point.
+// compareBounds: the echoed input lies within core's bounds; qbw is QB
+// for an aqueous solution and QB (Fp (1 - Hct) + Fr Hct) for whole blood.
+// Without ultrafiltration, for each arrangement 0 <= D <= its ceiling, with
+// the counter-current ceiling min(QBW, QD) and the co-current one
+// QBW QD/(QBW + QD) (REFERENCES: the KoA -> infinity limits);
+// counter-current D >= co-current D (a fact of the model,
+// property_test.go); K = D (CBi - CDi)/CBi; the outlet concentrations lie
+// between the two inlets (no solute is created: common practice, no
+// source); the sweeps keep the same bounds point by point. With
+// ultrafiltration (filtrationBounds) the bounds of the ultrafiltration
+// model apply.
 func compareBounds(response []byte) error {
 	var r struct {
 		Input          core.Operating   `json:"input"`
+		QBW            float64          `json:"qbw"`
 		Countercurrent core.Performance `json:"countercurrent"`
 		Cocurrent      core.Performance `json:"cocurrent"`
 		Sweeps         *core.Sweeps     `json:"sweeps"`
@@ -174,12 +179,25 @@ func compareBounds(response []byte) error {
 	op := r.Input
 	if !(op.QB >= core.MinFlow && op.QB <= core.MaxFlow && op.QD >= core.MinFlow && op.QD <= core.MaxFlow &&
 		op.KoA >= 0 && op.KoA <= core.MaxKoA && op.CBi > 0 && op.CBi <= core.MaxConcentration &&
-		op.CDi >= 0 && op.CDi <= core.MaxConcentration) {
+		op.CDi >= 0 && op.CDi <= core.MaxConcentration && op.QF >= 0 && op.QF < r.QBW && op.Sieving >= 0 && op.Sieving <= 1) {
 		return fmt.Errorf("input %+v outside core's bounds", op)
+	}
+	qbw := op.QB
+	if b := op.Blood; b != nil {
+		if !(b.Hct >= 0 && b.Hct <= core.MaxHct && b.PlasmaWater > 0 && b.PlasmaWater <= 1 && b.RedCellWater > 0 && b.RedCellWater <= 1) {
+			return fmt.Errorf("input blood %+v outside core's bounds", *b)
+		}
+		qbw = op.QB * (b.PlasmaWater*(1-b.Hct/100) + b.RedCellWater*b.Hct/100)
+	}
+	if !within(r.QBW, qbw, qbw) {
+		return fmt.Errorf("qbw %g, want %g", r.QBW, qbw)
+	}
+	if op.QF > 0 {
+		return filtrationBounds(op, r.QBW, r.Countercurrent, r.Cocurrent, r.Sweeps)
 	}
 	f := (op.CBi - op.CDi) / op.CBi
 	lo, hi := math.Min(op.CBi, op.CDi), math.Max(op.CBi, op.CDi)
-	ceilings := [2]float64{math.Min(op.QB, op.QD), op.QB * op.QD / (op.QB + op.QD)}
+	ceilings := [2]float64{math.Min(qbw, op.QD), qbw * op.QD / (qbw + op.QD)}
 	for i, p := range []core.Performance{r.Countercurrent, r.Cocurrent} {
 		if !within(p.DialysanceCeiling, ceilings[i], ceilings[i]) || !within(p.Dialysance, 0, p.DialysanceCeiling) {
 			return fmt.Errorf("arrangement %d: dialysance %g, ceiling %g, want 0 <= D <= ceiling = %g", i, p.Dialysance, p.DialysanceCeiling, ceilings[i])
@@ -222,6 +240,43 @@ func compareBounds(response []byte) error {
 			if !within(co, 0, cc) || !within(cc, co, ccMax) || !within(coMax, 0, ccMax) {
 				return fmt.Errorf("sweep %s at x = %g: dialysances co %g, counter %g, ceilings %g and %g, want 0 <= co <= counter <= its ceiling, co ceiling <= counter ceiling",
 					name, s.X[i], co, cc, coMax, ccMax)
+			}
+		}
+	}
+	return nil
+}
+
+// filtrationBounds are the bounds of the ultrafiltration model
+// (core/ultrafiltration_test.go, TestTransferProperties): D >= 0 and the
+// clearance with fresh dialysate at most QBW, so clearance and both
+// ceilings stay within [.., QBW]; the outlets are not negative; with S = 1
+// and CDi <= CBi, moreover, clearance and dialysance lie at or below their
+// ceilings and counter-current at or above co-current. The sweeps are
+// finite (checked before) with ceilings of at least the clearance under
+// the same condition.
+func filtrationBounds(op core.Operating, qbw float64, cc, co core.Performance, sweeps *core.Sweeps) error {
+	ordered := op.Sieving == 1 && op.CDi <= op.CBi
+	for i, p := range []core.Performance{cc, co} {
+		if !within(p.Dialysance, 0, qbw) || !within(p.Clearance, math.Inf(-1), qbw) || !within(p.DialysanceCeiling, 0, qbw) ||
+			!within(p.ClearanceCeiling, math.Inf(-1), qbw) || p.BloodOutlet < 0 || p.DialysateOutlet < 0 {
+			return fmt.Errorf("arrangement %d: %+v, want 0 <= D <= QBW = %g, clearance and ceilings at most QBW, outlets >= 0", i, p, qbw)
+		}
+		if ordered && (!within(p.Clearance, math.Inf(-1), p.ClearanceCeiling) || !within(p.Dialysance, 0, p.DialysanceCeiling)) {
+			return fmt.Errorf("arrangement %d: %+v, want clearance and dialysance at or below their ceilings (S = 1)", i, p)
+		}
+	}
+	if ordered && !within(cc.Clearance, co.Clearance, math.Inf(1)) {
+		return fmt.Errorf("counter-current clearance %g < co-current %g (S = 1)", cc.Clearance, co.Clearance)
+	}
+	if sweeps == nil || !ordered {
+		return nil
+	}
+	for name, s := range map[string]core.Series{"qb": sweeps.QB, "qd": sweeps.QD, "koa": sweeps.KoA} {
+		for i, x := range s.X {
+			if !within(s.Countercurrent[i], math.Inf(-1), s.CountercurrentCeiling[i]) || !within(s.Cocurrent[i], math.Inf(-1), s.CocurrentCeiling[i]) ||
+				!within(s.Countercurrent[i], s.Cocurrent[i], math.Inf(1)) {
+				return fmt.Errorf("sweep %s at x = %g: counter %g (ceiling %g), co %g (ceiling %g), want each at or below its ceiling, co at or below counter",
+					name, x, s.Countercurrent[i], s.CountercurrentCeiling[i], s.Cocurrent[i], s.CocurrentCeiling[i])
 			}
 		}
 	}

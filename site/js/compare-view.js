@@ -6,7 +6,9 @@ import { renderOutputs } from './format.js';
 import { drawChart } from './chart.js';
 
 // Demo values: an invented bench check at a home-care client.
-export const DEMO = { qb: '300', qd: '500', koa: '800', cbi: '', cdi: '' };
+// No ultrafiltration and an aqueous test solution: the blank fields take
+// their defaults (QF 0, S 1, no haematocrit).
+export const DEMO = { qb: '300', qd: '500', koa: '800', cbi: '', cdi: '', qf: '', sieving: '', hct: '', plasma_water: '', red_cell_water: '' };
 
 const AXES = {
   qb: { title: 'Clearance against blood flow', label: 'Blood flow QB (mL/min)' },
@@ -29,6 +31,7 @@ export function mountCompare(root, engine) {
   const chart = root.querySelector('svg.chart');
   const caption = root.querySelector('figcaption');
   const axisButtons = root.querySelectorAll('[data-axis]');
+  const bloodNote = root.querySelector('#compare-blood-note');
   let axis = 'qb';
   let last = null;
 
@@ -65,6 +68,7 @@ export function mountCompare(root, engine) {
     results.dataset.state = 'ok';
     last = response;
     renderOutputs(results, response);
+    bloodNote.hidden = !response.input.blood;
     draw();
   }
 

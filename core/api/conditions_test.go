@@ -1,0 +1,153 @@
+package api_test
+
+import (
+	"math"
+	"slices"
+	"testing"
+
+	"clearkit/core"
+	"clearkit/core/api"
+)
+
+// The fields beyond the ideal model (api.Conditions: hct, plasma_water,
+// red_cell_water, qf, sieving) on compare: defaults, echo, numbers equal to
+// core's, errors by field. README, Calculation API, is the contract.
+
+// wholeBloodRequest is routineRequest with whole blood of haematocrit 32 %
+// and QF 10 mL/min.
+const wholeBloodRequest = `{"qb":300,"qd":500,"koa":800,"hct":32,"qf":10}`
+
+func TestCompareConditionsShape(t *testing.T) {
+	resp := compare(t, wholeBloodRequest)
+	if got, want := keys(t, resp, "input"), sorted(append(slices.Clone(inputKeys), "blood")...); !slices.Equal(got, want) {
+		t.Errorf("Compare(%s) input members %v, want %v", wholeBloodRequest, got, want)
+	}
+	if got, want := keys(t, resp, "input", "blood"), sorted("hct", "plasma_water", "red_cell_water"); !slices.Equal(got, want) {
+		t.Errorf("Compare(%s) input.blood members %v, want %v", wholeBloodRequest, got, want)
+	}
+	if got := keys(t, resp); !slices.Equal(got, topKeys) {
+		t.Errorf("Compare(%s) members %v, want %v", wholeBloodRequest, got, topKeys)
+	}
+}
+
+// Each request gives the operating point core computes with, defaults
+// filled in: qf 0, sieving 1 (urea), no blood correction unless hct is
+// given, then plasma water 0.93 and red-cell water 0.72.
+func TestCompareConditionsNumbers(t *testing.T) {
+	blood := func(hct, fp, fr float64) *core.WholeBlood {
+		return &core.WholeBlood{Hct: hct, PlasmaWater: fp, RedCellWater: fr}
+	}
+	for _, c := range []struct {
+		request string
+		op      core.Operating
+	}{
+		{`{"qb":300,"qd":500,"koa":800,"qf":10}`, core.Operating{QB: 300, QD: 500, KoA: 800, CBi: 1, Filtration: core.Filtration{QF: 10, Sieving: 1}}},
+		{`{"qb":300,"qd":500,"koa":800,"qf":"12,5","sieving":"0,8"}`, core.Operating{QB: 300, QD: 500, KoA: 800, CBi: 1, Filtration: core.Filtration{QF: 12.5, Sieving: 0.8}}},
+		{`{"qb":300,"qd":500,"koa":800,"qf":0,"sieving":0.5}`, core.Operating{QB: 300, QD: 500, KoA: 800, CBi: 1, Filtration: core.Filtration{Sieving: 0.5}}},
+		{wholeBloodRequest, core.Operating{QB: 300, QD: 500, KoA: 800, CBi: 1, Blood: blood(32, 0.93, 0.72), Filtration: core.Filtration{QF: 10, Sieving: 1}}},
+		{`{"qb":300,"qd":500,"koa":800,"hct":0}`, core.Operating{QB: 300, QD: 500, KoA: 800, CBi: 1, Blood: blood(0, 0.93, 0.72), Filtration: core.Filtration{Sieving: 1}}},
+		{`{"qb":300,"qd":500,"koa":800,"hct":"40","plasma_water":"0,94","red_cell_water":0.7,"qf":30,"sieving":1,"cbi":25,"cdi":2}`,
+			core.Operating{QB: 300, QD: 500, KoA: 800, CBi: 25, CDi: 2, Blood: blood(40, 0.94, 0.7), Filtration: core.Filtration{QF: 30, Sieving: 1}}},
+		// Empty strings and null are absent fields.
+		{`{"qb":300,"qd":500,"koa":800,"hct":"","plasma_water":null,"red_cell_water":"","qf":"","sieving":null}`, core.Operating{QB: 300, QD: 500, KoA: 800, CBi: 1, Filtration: core.Filtration{Sieving: 1}}},
+	} {
+		got := success(t, c.request)
+		want, err := core.Compare(c.op)
+		if err != nil {
+			t.Fatalf("core.Compare(%+v) error: %v", c.op, err)
+		}
+		in := got.Input
+		if in.Blood != nil && c.op.Blood != nil && *in.Blood == *c.op.Blood {
+			in.Blood = c.op.Blood
+		}
+		if in != c.op {
+			t.Errorf("Compare(%s).input = %+v (blood %v), want %+v (blood %v)", c.request, got.Input, got.Input.Blood, c.op, c.op.Blood)
+		}
+		if got.Comparison != want {
+			t.Errorf("Compare(%s) = %+v, want core.Compare's %+v", c.request, got.Comparison, want)
+		}
+	}
+}
+
+// qbw is 300 (0.93 x 0.68 + 0.72 x 0.32) = 258.84 mL/min at a haematocrit of
+// 32 % (worked by hand; fractions from memory, Lim, Flanigan and Depner).
+func TestCompareConditionsBloodWater(t *testing.T) {
+	got := success(t, wholeBloodRequest)
+	if math.Abs(got.QBW-258.84) > 1e-12 {
+		t.Errorf("Compare(%s).qbw = %.17g, want 258.84", wholeBloodRequest, got.QBW)
+	}
+	if got := success(t, routineRequest); got.QBW != 300 {
+		t.Errorf("Compare(%s).qbw = %g, want QB", routineRequest, got.QBW)
+	}
+}
+
+func TestCompareConditionsErrors(t *testing.T) {
+	base := `"qb":300,"qd":500,"koa":800`
+	for _, c := range []struct{ extra, field, word string }{
+		{`"qf":-1`, "qf", "negative"},
+		{`"qf":"abc"`, "qf", "must be a number"},
+		{`"qf":1e-7`, "qf", "too small"},
+		{`"qf":300`, "qf", "below the blood flow QB, 300"},
+		{`"qf":"299,9999995"`, "qf", "leaving at least 1e-06"},
+		{`"qf":260,"hct":32`, "qf", "blood-water flow QBW, 258.84"},
+		{`"qf":true`, "qf", "got true or false"},
+		{`"sieving":1.2`, "sieving", "from 0 to 1"},
+		{`"sieving":-0.1`, "sieving", "from 0 to 1"},
+		{`"sieving":"NaN"`, "sieving", "must be a number"},
+		{`"hct":0.32`, "hct", "enter 32"},
+		{`"hct":-5`, "hct", "negative"},
+		{`"hct":85`, "hct", "maximum 80"},
+		{`"hct":[32]`, "hct", "got a list"},
+		{`"plasma_water":0.93`, "plasma_water", "whole blood only"},
+		{`"red_cell_water":0.72`, "red_cell_water", "whole blood only"},
+		{`"plasma_water":"x"`, "plasma_water", "must be a number"},
+		{`"hct":32,"plasma_water":93`, "plasma_water", "at most 1"},
+		{`"hct":32,"red_cell_water":0`, "red_cell_water", "above 0"},
+		// Order: the operating point, then the blood, then the filtration.
+		{`"hct":-1,"qf":-1`, "hct", "negative"},
+		{`"qf":-1,"sieving":2`, "qf", "negative"},
+		{`"cdi":-1,"qf":-1`, "cdi", "negative"},
+		// An unknown relative of the new fields.
+		{`"hematocrit":32`, "hematocrit", "is not a field"},
+		{`"qf":10,"QF":20`, "qf", "more than once"},
+	} {
+		fails(t, "{"+base+","+c.extra+"}", c.field, c.word)
+	}
+	// The limit of qf is the blood-side flow less the smallest flow.
+	env := checkResponse(t, api.Entries[0], []byte(`{`+base+`,"qf":400}`), api.Compare([]byte(`{`+base+`,"qf":400}`)))
+	if env.Error == nil || env.Error.Limit == nil || *env.Error.Limit != 300-core.MinFlow {
+		t.Errorf("Compare with qf 400: error %+v, want limit %g", env.Error, 300-core.MinFlow)
+	}
+}
+
+// The chart's QB range starts at max(25, 2 QF/w) by default; a range whose
+// low end leaves no blood after the ultrafiltration is refused.
+func TestCompareConditionsSweep(t *testing.T) {
+	for _, c := range []struct {
+		request string
+		start   float64
+	}{
+		{`{"qb":300,"qd":500,"koa":800,"qf":10,"sweep":{}}`, 25},
+		{`{"qb":300,"qd":500,"koa":800,"qf":30,"sweep":{}}`, 60},
+		{`{"qb":300,"qd":500,"koa":800,"qf":30,"hct":32,"sweep":{}}`, 60 / (0.93*0.68 + 0.72*0.32)},
+	} {
+		got := success(t, c.request)
+		if got.Sweeps == nil || math.Abs(got.Sweeps.QB.X[0]-c.start) > 1e-12*c.start {
+			t.Errorf("Compare(%s): QB sweep starts at %v, want %g", c.request, got.Sweeps.QB.X[:1], c.start)
+		}
+	}
+	fails(t, `{"qb":300,"qd":500,"koa":800,"qf":30,"sweep":{"qb":[30,600]}}`, "sweep.qb", "above qf 30")
+	success(t, `{"qb":300,"qd":500,"koa":800,"qf":30,"sweep":{"qb":[31,600]}}`)
+}
+
+// BenchmarkAPICompareFiltrationWithSweep is the page's chart request with
+// QF > 0 and whole blood: the default 101 points on 3 axes, encoded.
+func BenchmarkAPICompareFiltrationWithSweep(b *testing.B) {
+	req := []byte(`{"qb":300,"qd":500,"koa":800,"qf":10,"hct":32,"sweep":{}}`)
+	b.ReportAllocs()
+	for b.Loop() {
+		if resp := api.Compare(req); resp[6] != 't' {
+			b.Fatalf("Compare(%s) = %s", req, resp)
+		}
+	}
+}

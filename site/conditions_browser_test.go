@@ -1,0 +1,105 @@
+package site
+
+import (
+	"strconv"
+	"strings"
+	"testing"
+
+	"github.com/chromedp/chromedp"
+
+	"clearkit/core"
+)
+
+// The ultrafiltration and whole-blood inputs of the compare view: typed
+// values give core.Compare's numbers, the blood-water note appears only
+// for whole blood, errors sit beside their fields, and the section is
+// usable on a tablet.
+
+func TestCompareConditionsMatchCore(t *testing.T) {
+	p := openPage(t, "")
+	p.do(chromedp.Click(chromedp.CSS(`#compare-conditions summary`)))
+	p.typeInto("#compare-qf", "10")
+	op := core.Operating{QB: 300, QD: 500, KoA: 800, CBi: 1, Filtration: core.Filtration{QF: 10, Sieving: 1}}
+	wantOutputs(t, p, op)
+	if hidden := eval[bool](p, `document.getElementById('compare-blood-note').hidden`); !hidden {
+		t.Errorf("blood-water note shown for an aqueous solution")
+	}
+
+	p.typeInto("#compare-hct", "32")
+	p.typeInto("#compare-sieving", "0,9") // a decimal comma
+	b := core.DefaultWholeBlood(32)
+	op.Blood, op.Sieving = &b, 0.9
+	wantOutputs(t, p, op)
+	if hidden := eval[bool](p, `document.getElementById('compare-blood-note').hidden`); hidden {
+		t.Errorf("blood-water note hidden for whole blood")
+	}
+	// QBW = 258.84 mL/min (worked by hand in core/bloodwater_test.go),
+	// shown to one decimal.
+	v := eval[string](p, `document.querySelector('#compare-blood-note output').dataset.value`)
+	if got, err := strconv.ParseFloat(v, 64); err != nil || got != op.BloodSideFlow() {
+		t.Errorf("page qbw = %q, want %v", v, op.BloodSideFlow())
+	}
+	if got := eval[string](p, `document.querySelector('#compare-blood-note output').textContent`); got != "258.8" {
+		t.Errorf("qbw text = %q, want 258.8", got)
+	}
+
+	p.typeInto("#compare-plasma_water", "0,94")
+	p.typeInto("#compare-red_cell_water", "0.7")
+	op.Blood = &core.WholeBlood{Hct: 32, PlasmaWater: 0.94, RedCellWater: 0.7}
+	wantOutputs(t, p, op)
+
+	p.screenshot("compare-conditions-landscape-1024x768")
+	noSideScroll(t, p, "landscape 1024x768, conditions open")
+	p.do(chromedp.EmulateViewport(768, 1024))
+	p.screenshot("compare-conditions-portrait-768x1024")
+	noSideScroll(t, p, "portrait 768x1024, conditions open")
+
+	// The demo button puts back an aqueous solution without
+	// ultrafiltration.
+	p.do(chromedp.Click(chromedp.CSS(`#compare-demo`)))
+	wantOutputs(t, p, core.Operating{QB: 300, QD: 500, KoA: 800, CBi: 1, Filtration: core.Filtration{Sieving: 1}})
+}
+
+func TestCompareConditionsErrors(t *testing.T) {
+	p := openPage(t, "")
+	for _, tc := range []struct{ input, text, field, want string }{
+		{"#compare-qf", "300", "qf", "below the blood flow QB"},
+		{"#compare-qf", "-2", "qf", "must not be negative"},
+		{"#compare-sieving", "2", "sieving", "from 0 to 1"},
+		{"#compare-hct", "0,32", "hct", "is in percent"},
+		{"#compare-plasma_water", "0.93", "plasma_water", "whole blood only"},
+	} {
+		// The section starts closed: an error must open it.
+		eval[bool](p, `(() => { document.getElementById('compare-conditions').open = false; return true; })()`)
+		eval[bool](p, `(() => { const i = document.querySelector('`+tc.input+`'); i.value = '`+tc.text+`'; i.dispatchEvent(new Event('input', {bubbles: true})); return true; })()`)
+		msg := eval[string](p, `document.querySelector('[data-error-for="`+tc.field+`"]').textContent`)
+		if !strings.Contains(msg, tc.want) {
+			t.Errorf("%s = %q: error %q, want it to say %q", tc.field, tc.text, msg, tc.want)
+		}
+		if open := eval[bool](p, `document.getElementById('compare-conditions').open`); !open {
+			t.Errorf("%s = %q: the section holding the field stayed closed", tc.field, tc.text)
+		}
+		if state := eval[string](p, `document.getElementById('compare-results').dataset.state`); state != "error" {
+			t.Errorf("%s = %q: results state %q, want error", tc.field, tc.text, state)
+		}
+		p.typeInto(tc.input, "")
+	}
+	// QF above the blood-water flow of whole blood names that flow.
+	p.typeInto("#compare-hct", "32")
+	p.typeInto("#compare-qf", "260")
+	if msg := eval[string](p, `document.querySelector('[data-error-for="qf"]').textContent`); !strings.Contains(msg, "blood-water flow QBW, 258.84") {
+		t.Errorf("qf 260 with hct 32: error %q, want it to name the blood-water flow 258.84", msg)
+	}
+}
+
+// Every control of the open section is at least 44 x 44 px (WCAG 2.2
+// target size, enhanced level 2.5.5), as TestTouchTargets asks of the
+// rest of the page.
+func TestCompareConditionsTouchTargets(t *testing.T) {
+	p := openPage(t, "")
+	p.do(chromedp.Click(chromedp.CSS(`#compare-conditions summary`)))
+	small := eval[[]string](p, `[...document.querySelectorAll('#compare-conditions input, #compare-conditions summary')].filter(e => { const r = e.getBoundingClientRect(); return r.height < 44 || r.width < 44; }).map(e => e.id || e.textContent.trim())`)
+	if len(small) > 0 {
+		t.Errorf("controls smaller than 44 x 44 px: %v", small)
+	}
+}
