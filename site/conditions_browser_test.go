@@ -103,3 +103,19 @@ func TestCompareConditionsTouchTargets(t *testing.T) {
 		t.Errorf("controls smaller than 44 x 44 px: %v", small)
 	}
 }
+
+// A record saved before the ultrafiltration and blood fields existed has
+// no qf, hct, ...: restoring it must blank them, not keep what was typed.
+func TestCompareRestoreOlderRecord(t *testing.T) {
+	p := openPage(t, "")
+	p.reveal("#compare-qf")
+	p.typeInto("#compare-qf", "20")
+	p.typeInto("#compare-hct", "35")
+	eval[bool](p, `import('./js/views.js').then(m => { m.views.get('compare').restore({qb: '280', qd: '700', koa: '950', cbi: '', cdi: ''}); return true; })`)
+	for _, id := range []string{"qf", "sieving", "hct", "plasma_water", "red_cell_water"} {
+		if v := eval[string](p, `document.getElementById('compare-`+id+`').value`); v != "" {
+			t.Errorf("after restoring an older record, %s = %q, want empty", id, v)
+		}
+	}
+	wantOutputs(t, p, core.Operating{QB: 280, QD: 700, KoA: 950, CBi: 1, Filtration: core.Filtration{Sieving: 1}})
+}

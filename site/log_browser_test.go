@@ -99,7 +99,7 @@ func TestLogSaveOfflineSurvivesReload(t *testing.T) {
 	if want := map[string]any{"site": "North ward, bay 3", "machine_id": "HD-0417", "filter": "Model F-60 (invented)", "notes": "after descaling"}; !reflect.DeepEqual(r["labels"], want) {
 		t.Errorf("labels %v, want %v", r["labels"], want)
 	}
-	if want := map[string]any{"qb": "280", "qd": "700", "koa": "950", "cbi": "", "cdi": ""}; !reflect.DeepEqual(r["inputs"], want) {
+	if want := map[string]any{"qb": "280", "qd": "700", "koa": "950", "cbi": "", "cdi": "", "qf": "", "sieving": "", "hct": "", "plasma_water": "", "red_cell_water": ""}; !reflect.DeepEqual(r["inputs"], want) {
 		t.Errorf("inputs %v, want %v", r["inputs"], want)
 	}
 	// The saved result is the API's answer at those inputs, without the

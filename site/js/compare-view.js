@@ -5,10 +5,14 @@ import { readForm, fillForm, showError } from './form.js';
 import { renderOutputs } from './format.js';
 import { drawChart } from './chart.js';
 
-// Demo values: an invented bench check at a home-care client.
-// No ultrafiltration and an aqueous test solution: the blank fields take
-// their defaults (QF 0, S 1, no haematocrit).
-export const DEMO = { qb: '300', qd: '500', koa: '800', cbi: '', cdi: '', qf: '', sieving: '', hct: '', plasma_water: '', red_cell_water: '' };
+// The ultrafiltration and whole-blood fields left blank: QF 0, S 1, an
+// aqueous solution. Records saved before these fields existed lack them,
+// and restore() must not keep what was typed before.
+const NO_CONDITIONS = { qf: '', sieving: '', hct: '', plasma_water: '', red_cell_water: '' };
+
+// Demo values: an invented bench check at a home-care client, aqueous
+// solution, no ultrafiltration.
+export const DEMO = { qb: '300', qd: '500', koa: '800', cbi: '', cdi: '', ...NO_CONDITIONS };
 
 const AXES = {
   qb: { title: 'Clearance against blood flow', label: 'Blood flow QB (mL/min)' },
@@ -94,7 +98,7 @@ export function mountCompare(root, engine) {
     snapshot: () => (results.dataset.state === 'ok' && last ? { view: 'compare', inputs: readForm(form), result: withoutSweeps(last) } : null),
     inputs: () => readForm(form),
     restore(inputs) {
-      fillForm(form, inputs);
+      fillForm(form, { ...NO_CONDITIONS, ...inputs });
       update();
     },
   };
