@@ -23,6 +23,15 @@ func wholeBlood() core.Operating {
 	return op
 }
 
+// usedFiltered is routine, an aqueous solution, with ultrafiltration qf of
+// sieving coefficient s and used dialysate at CDi = cdi.
+func usedFiltered(qf, s, cdi float64) core.Operating {
+	op := routine
+	op.Filtration = core.Filtration{QF: qf, Sieving: s}
+	op.CDi = cdi
+	return op
+}
+
 // With whole blood the model works with QBW in place of QB: Compare equals
 // Compare of an aqueous solution at QB = QBW, field by field, and reports
 // QBW.
@@ -62,12 +71,7 @@ func TestCompareWholeBlood(t *testing.T) {
 // Compare's derived numbers follow their definitions with ultrafiltration
 // too (compare.go doc comments).
 func TestCompareFiltrationDefinitions(t *testing.T) {
-	for _, op := range []core.Operating{wholeBlood(), func() core.Operating {
-		o := routine
-		o.Filtration = core.Filtration{QF: 25, Sieving: 0.8}
-		o.CDi = 0.2
-		return o
-	}()} {
+	for _, op := range []core.Operating{wholeBlood(), usedFiltered(25, 0.8, 0.2)} {
 		c, err := core.Compare(op)
 		if err != nil {
 			t.Fatalf("Compare(%+v) error: %v", op, err)
@@ -126,12 +130,7 @@ func TestValidateBloodAndFiltration(t *testing.T) {
 // default, and a QB range that lets QF reach the blood-side flow is
 // refused.
 func TestSweepFiltration(t *testing.T) {
-	for _, op := range []core.Operating{wholeBlood(), func() core.Operating {
-		o := routine
-		o.Filtration = core.Filtration{QF: 30, Sieving: 0.6}
-		o.CDi = 0.1
-		return o
-	}()} {
+	for _, op := range []core.Operating{wholeBlood(), usedFiltered(30, 0.6, 0.1)} {
 		s, err := core.Sweep(op, core.SweepSpec{Points: 21})
 		if err != nil {
 			t.Fatalf("Sweep(%+v) error: %v", op, err)
