@@ -36,7 +36,12 @@ func (p *page) saveRecord(view string, l labels) {
 	p.do(chromedp.Click(chromedp.CSS(`[data-save-view="` + view + `"]`)))
 	p.waitFor(`document.getElementById('save-dialog').open`, 5*time.Second)
 	for sel, text := range map[string]string{"#save-site": l.Site, "#save-machine": l.Machine, "#save-filter": l.Filter} {
-		p.typeInto(sel, text)
+		if len(text) <= 40 {
+			p.typeInto(sel, text)
+			continue
+		}
+		// Long text key by key takes long on a loaded machine: set it whole.
+		eval[bool](p, fmt.Sprintf(`(document.querySelector(%q).value = %s, true)`, sel, jsString(text)))
 	}
 	// The notes field is a textarea: set it whole (it may hold line breaks).
 	eval[bool](p, fmt.Sprintf(`(document.getElementById('save-notes').value = %s, true)`, jsString(l.Notes)))
