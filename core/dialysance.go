@@ -1,6 +1,10 @@
 package core
 
-import "math"
+import (
+	"fmt"
+	"math"
+	"strconv"
+)
 
 // Conductivity dialysance.
 //
@@ -63,6 +67,9 @@ type DialysanceSetting struct {
 	// KoA is found, with both the dialysance the rated filter gives.
 	QB       float64 `json:"qb"`
 	RatedKoA float64 `json:"koa"`
+	// Tolerance is the deviation from the rated filter's dialysance
+	// accepted, a fraction; 0 takes DefaultClearanceTolerance (check.go).
+	Tolerance float64 `json:"tolerance"`
 }
 
 // DialysanceResult is a conductivity dialysance.
@@ -89,6 +96,12 @@ type DialysanceResult struct {
 	// measured one's deviation from it (a fraction).
 	Expected  *float64 `json:"expected_dialysance"`
 	Deviation *float64 `json:"deviation"`
+	// Verdict on the rating: "as_rated", "below_rating", "above_rating",
+	// or "not_rated" without QB and a rated KoA; Overall the worst level of
+	// Findings, plain sentences as in a clearance check.
+	Verdict  string    `json:"verdict"`
+	Overall  string    `json:"overall"`
+	Findings []Finding `json:"findings"`
 }
 
 // ConductivityDialysance returns the conductivity dialysance from the dialysate
@@ -156,7 +169,45 @@ func ConductivityDialysance(lv Levels, st DialysanceSetting) (DialysanceResult, 
 		d.Expected = ptr(expected)
 		d.Deviation = ptr((de - expected) / expected)
 	}
+	d.Verdict, d.Findings = judgeDialysance(d, st)
+	d.Overall = worst(d.Findings)
 	return d, nil
+}
+
+// judgeDialysance compares the dialysance with the rated filter's, with
+// the tolerance a clearance check uses (the ±10 % of ISO 8637-1, from
+// memory): ionic dialysance tracks urea clearance closely in vitro
+// (recirculation-corrected ionic dialysance minus urea clearance
+// 0.6 ± 16.9 mL/min in patients, Mercadal et al., NDT 2002).
+func judgeDialysance(d DialysanceResult, st DialysanceSetting) (string, []Finding) {
+	tol := st.Tolerance
+	if tol == 0 {
+		tol = DefaultClearanceTolerance
+	}
+	var out []Finding
+	add := func(level, code, format string, args ...any) {
+		out = append(out, Finding{Level: level, Code: code, Text: fmt.Sprintf(format, args...)})
+	}
+	verdict := "not_rated"
+	switch {
+	case d.Deviation == nil:
+		add("note", verdict, "Enter the blood flow and the filter's rated KoA to compare the dialysance with its rating.")
+	case math.Abs(*d.Deviation) <= tol:
+		verdict = "as_rated"
+		add("pass", verdict, "The dialysance, %.1f mL/min, is within ±%g %% of the %.1f mL/min a KoA %g mL/min filter gives counter-current at these flows (%+.1f %%).",
+			d.Dialysance, 100*tol, *d.Expected, st.RatedKoA, 100**d.Deviation)
+	case *d.Deviation < 0:
+		verdict = "below_rating"
+		add("fail", verdict, "The dialysance, %.1f mL/min, is %.1f %% below the %.1f mL/min a KoA %g mL/min filter gives counter-current at these flows: fouling, clotting, reversed dialysate lines or a different filter; confirm with a clearance test.",
+			d.Dialysance, -100**d.Deviation, *d.Expected, st.RatedKoA)
+	default:
+		verdict = "above_rating"
+		add("warn", verdict, "The dialysance, %.1f mL/min, is %.1f %% above the %.1f mL/min a KoA %g mL/min filter gives counter-current at these flows: check the flows, the readings and the rated KoA entered.",
+			d.Dialysance, 100**d.Deviation, *d.Expected, st.RatedKoA)
+	}
+	add("note", "resolution", "The meter's resolution alone may move the dialysance by ±%.1f mL/min (%s resolution over a %g inlet step).",
+		d.ResolutionBound, strconv.FormatFloat(d.Resolution, 'g', -1, 64), math.Abs(d.InletStep))
+	return verdict, out
 }
 
 func (st DialysanceSetting) validate() error {
@@ -178,6 +229,9 @@ func (st DialysanceSetting) validate() error {
 		if err := checkUltrafiltration(st.QF, st.QB); err != nil {
 			return err
 		}
+	}
+	if err := checkFraction("tolerance_percent", st.Tolerance, 0, 1, true); err != nil {
+		return err
 	}
 	if st.RatedKoA != 0 {
 		if st.QB == 0 {

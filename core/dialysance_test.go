@@ -193,3 +193,44 @@ func TestConductivityErrors(t *testing.T) {
 		}
 	}
 }
+
+// Verdicts against the rated filter, for readings built forward by the
+// ion mass balance (levelsFor) from filters of KoA 800, 500, 1100 and
+// 1500 at QB 300, QD 500, QF 10 (core.Dialysance) and a rating of 800.
+// The deviations, (D(KoA) + QF)/(D(800) + QF) - 1 with D from
+// core.Dialysance, are 0, -14.3 %, +7.7 % and +13.3 %. A pass is
+// reported overall as "note", for the resolution note that follows.
+func TestConductivityVerdicts(t *testing.T) {
+	const qb, qd, qf = 300, 500, 10
+	for _, c := range []struct {
+		koa, tol float64
+		verdict  string
+		level    string
+	}{
+		{800, 0, "as_rated", "pass"},
+		{500, 0, "below_rating", "fail"},
+		{1100, 0, "as_rated", "pass"},
+		{1100, 0.05, "above_rating", "warn"},
+		{1500, 0, "above_rating", "warn"},
+	} {
+		lv := levelsFor(qd, qf, core.Dialysance(core.Countercurrent, qb, qd, c.koa), 14, 14.5, 13.5)
+		d := conductivity(t, lv, core.DialysanceSetting{QD: qd, QF: qf, QB: qb, RatedKoA: 800, Tolerance: c.tol})
+		overall := c.level
+		if overall == "pass" {
+			overall = "note"
+		}
+		if d.Verdict != c.verdict || d.Overall != overall || d.Findings[0].Code != c.verdict || d.Findings[0].Level != c.level {
+			t.Errorf("KoA %g, tolerance %g: verdict %q, overall %q, findings %+v; want %q at %q", c.koa, c.tol, d.Verdict, d.Overall, d.Findings, c.verdict, c.level)
+		}
+		if n := len(d.Findings); n != 2 || d.Findings[1].Code != "resolution" || !strings.Contains(d.Findings[1].Text, "±") {
+			t.Errorf("KoA %g: findings %+v, want the verdict then a resolution note", c.koa, d.Findings)
+		}
+	}
+	d := conductivity(t, core.Levels{Cdi1: 15, Cdo1: 14.6, Cdi2: 14, Cdo2: 14.2}, core.DialysanceSetting{QD: 500})
+	if d.Verdict != "not_rated" || d.Overall != "note" {
+		t.Errorf("without a rating: verdict %q, overall %q; want not_rated, note", d.Verdict, d.Overall)
+	}
+	if _, err := core.ConductivityDialysance(core.Levels{Cdi1: 15, Cdo1: 14.6, Cdi2: 14, Cdo2: 14.2}, core.DialysanceSetting{QD: 500, Tolerance: 2}); fieldOf(err) != "tolerance_percent" {
+		t.Errorf("tolerance 200 %%: error %v, want field tolerance_percent", err)
+	}
+}

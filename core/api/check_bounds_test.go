@@ -86,6 +86,12 @@ func dialysanceBounds(response []byte) error {
 	if r.KoACountercurrent != nil && *r.KoACountercurrent < 0 {
 		return fmt.Errorf("KoA %g < 0", *r.KoACountercurrent)
 	}
+	if !slices.Contains(verdicts, r.Verdict) || !slices.Contains(levels, r.Overall) || len(r.Findings) == 0 {
+		return fmt.Errorf("verdict %q, overall %q, %d findings", r.Verdict, r.Overall, len(r.Findings))
+	}
+	if (r.Verdict == "not_rated") != (r.Deviation == nil) {
+		return fmt.Errorf("verdict %q with deviation %v", r.Verdict, r.Deviation)
+	}
 	return nil
 }
 

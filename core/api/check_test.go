@@ -186,7 +186,7 @@ func TestDialysanceAPI(t *testing.T) {
 	if err != nil {
 		t.Fatal(err)
 	}
-	st.Resolution = core.DefaultResolution
+	st.Resolution, st.Tolerance = core.DefaultResolution, core.DefaultClearanceTolerance
 	if !got.OK || got.Input.Levels != lv || got.Input.DialysanceSetting != st || !reflect.DeepEqual(got.DialysanceResult, want) {
 		t.Errorf("dialysance(%s) = %+v, want core's %+v with input %+v %+v", req, got, want, lv, st)
 	}
@@ -211,6 +211,8 @@ func TestDialysanceAPIErrors(t *testing.T) {
 		{`{"qd":500,"cdi1":15,"cdo1":14.6,"cdi2":14,"cdo2":14.2,"koa":800}`, "qb", "needed"},
 		{`{"qd":500,"cdi1":15,"cdo1":14.6,"cdi2":14,"cdo2":14.2,"qb":0}`, "qb", "greater than 0"},
 		{`{"qd":500,"cdi1":15,"cdo1":14.6,"cdi2":14,"cdo2":14.2,"level":3}`, "level", "not a field"},
+		{`{"qd":500,"cdi1":15,"cdo1":14.6,"cdi2":14,"cdo2":14.2,"tolerance_percent":0}`, "tolerance_percent", "greater than 0"},
+		{`{"qd":500,"cdi1":15,"cdo1":14.6,"cdi2":14,"cdo2":14.2,"tolerance_percent":101}`, "tolerance_percent", "at most 100"},
 	} {
 		wantFailure(t, "dialysance", c.req, api.Dialysance([]byte(c.req)), c.field, c.says)
 	}

@@ -17,6 +17,9 @@ type DialysanceRequest struct {
 	// dialysance the rated filter gives. Both optional.
 	QB  Number `json:"qb"`
 	KoA Number `json:"koa"`
+	// TolerancePercent is the deviation from the rated filter's dialysance
+	// accepted, per cent; default 10.
+	TolerancePercent Number `json:"tolerance_percent"`
 }
 
 // DialysanceInput echoes the values used.
@@ -72,6 +75,9 @@ func (req DialysanceRequest) read() (in DialysanceInput, err error) {
 	if in.QB, err = positive("qb", req.QB, "mL/min"); err != nil {
 		return in, err
 	}
-	in.RatedKoA, err = positive("koa", req.KoA, "mL/min")
+	if in.RatedKoA, err = positive("koa", req.KoA, "mL/min"); err != nil {
+		return in, err
+	}
+	in.Tolerance, err = percent(req.TolerancePercent, "tolerance_percent", 100*core.DefaultClearanceTolerance, false)
 	return in, err
 }

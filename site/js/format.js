@@ -9,7 +9,7 @@ export function formatNumber(value, digits = 1, { percent = false, signed = fals
   return signed && shown > 0 ? `+${text}` : text;
 }
 
-function at(data, path) {
+export function at(data, path) {
   return path.split('.').reduce((obj, key) => (obj == null ? undefined : obj[key]), data);
 }
 

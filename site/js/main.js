@@ -3,6 +3,7 @@
 import { loadEngine } from './engine.js';
 import { mountCompare } from './compare-view.js';
 import { mountSize } from './size-view.js';
+import { mountCheck } from './check-view.js';
 import { startOffline } from './offline.js';
 import { views, showView, reopenLastView } from './views.js';
 import { startLog } from './log-start.js';
@@ -17,6 +18,7 @@ async function start() {
     document.getElementById('app-version').textContent = `version ${engine.version}`;
     views.set('compare', mountCompare(document.getElementById('view-compare'), engine));
     views.set('size', mountSize(document.getElementById('view-size'), engine));
+    views.set('check', mountCheck(document.getElementById('view-check'), engine));
     for (const tab of document.querySelectorAll('.view-tab')) {
       tab.addEventListener('click', () => showView(tab.dataset.view));
     }

@@ -1,0 +1,369 @@
+package site
+
+import (
+	"encoding/json"
+	"fmt"
+	"math"
+	"strconv"
+	"strings"
+	"testing"
+
+	"github.com/chromedp/chromedp"
+
+	"clearkit/core/api"
+)
+
+// Browser tests of the "Field checks" view (js/check-view.js): what the
+// page shows is what the API computes natively from the same request; each
+// field error appears beside its field; verdicts read in symbols and words;
+// the inputs suit gloved hands on a tablet.
+
+// The demo requests as the page sends them: every input's text, "" for an
+// empty one (check-view.js DEMO).
+var (
+	demoClearance = map[string]string{
+		"qb": "300", "qd": "500", "qf": "10", "koa": "800", "cbi": "100", "cbo": "19", "cdi": "", "cdo": "46.3",
+		"mass_balance_tolerance_percent": "", "clearance_tolerance_percent": "",
+		"concentration_uncertainty_percent": "2", "concentration_uncertainty_floor": "0.5", "flow_uncertainty_percent": "3",
+	}
+	demoConductivity = map[string]string{
+		"qd": "500", "qf": "10", "cdi1": "14.50", "cdo1": "14.25", "cdi2": "13.50", "cdo2": "13.75", "resolution": "",
+		"qb": "300", "koa": "800", "tolerance_percent": "",
+	}
+	demoBlood     = map[string]string{"set_flow": "300", "seconds": "60", "volume": "296", "tolerance_percent": "10", "circuit": "blood"}
+	demoDialysate = map[string]string{"set_flow": "500", "seconds": "300", "mass": "2490", "density": "0.993", "tolerance_percent": "5", "circuit": "dialysate"}
+)
+
+// native answers request with the API compiled natively, decoded.
+func native(t *testing.T, call func([]byte) []byte, request map[string]string) map[string]any {
+	t.Helper()
+	b, _ := json.Marshal(request)
+	var m map[string]any
+	if err := json.Unmarshal(call(b), &m); err != nil {
+		t.Fatal(err)
+	}
+	if m["ok"] != true {
+		t.Fatalf("native %s: %v", b, m)
+	}
+	return m
+}
+
+// valueAt follows a dotted path through a decoded response.
+func valueAt(m map[string]any, path string) (any, bool) {
+	var v any = m
+	for _, key := range strings.Split(path, ".") {
+		obj, ok := v.(map[string]any)
+		if !ok {
+			return nil, false // a part that is null or absent
+		}
+		if v, ok = obj[key]; !ok {
+			return nil, false
+		}
+	}
+	return v, true
+}
+
+type shownOutput struct {
+	Path, Value, Text, Null string
+}
+
+// wantShown checks every output[data-out] in the element sel against the
+// native response: a number equal to within 1e-15 relative (the page runs
+// the same Go code in wasm; math.Log, used by the co-current inverse near
+// its ceiling, is assembly natively and portable Go in wasm and may differ
+// in the last bit), a null as the output's data-null words, an absent part
+// as a dash.
+func wantShown(t *testing.T, p *page, sel string, want map[string]any) {
+	t.Helper()
+	shown := eval[[]shownOutput](p, fmt.Sprintf(`[...document.querySelectorAll(%q)].map(o => ({Path: o.dataset.out, Value: o.dataset.value, Text: o.textContent, Null: o.dataset.null || ''}))`, sel+" output[data-out]"))
+	if len(shown) == 0 {
+		t.Fatalf("no outputs in %s", sel)
+	}
+	for _, o := range shown {
+		v, present := valueAt(want, o.Path)
+		switch x := v.(type) {
+		case float64:
+			got, err := strconv.ParseFloat(o.Value, 64)
+			if err != nil || math.Abs(got-x) > 1e-15*math.Abs(x) {
+				t.Errorf("%s %s = %q (shown %q), want %v", sel, o.Path, o.Value, o.Text, x)
+			}
+		case nil:
+			wantText := "–"
+			if present && o.Null != "" {
+				wantText = o.Null
+			}
+			if o.Value != "" || o.Text != wantText {
+				t.Errorf("%s %s shows %q (value %q), want %q for a null", sel, o.Path, o.Text, o.Value, wantText)
+			}
+		default:
+			t.Errorf("%s %s: native value %v is not a number", sel, o.Path, v)
+		}
+	}
+}
+
+// wantVerdict checks the banner of the element sel: the symbol and the
+// word of level, and the label.
+func wantVerdict(t *testing.T, p *page, sel, level, symbol, word, label string) {
+	t.Helper()
+	got := eval[[]string](p, fmt.Sprintf(`(() => { const v = document.querySelector(%q); return [v.dataset.level, v.querySelector('.verdict-symbol').textContent, v.querySelector('.verdict-word').textContent, v.querySelector('.verdict-label').textContent]; })()`, sel+" .verdict"))
+	if got[0] != level || !strings.HasPrefix(got[1], symbol) || got[2] != word || got[3] != label {
+		t.Errorf("%s verdict = %q, want level %q, symbol %q, word %q, label %q", sel, got, level, symbol, word, label)
+	}
+}
+
+// wantFindings checks that the list in sel holds the response's findings
+// in order, each with its symbol, its level in words and its sentence.
+func wantFindings(t *testing.T, p *page, sel string, resp map[string]any) {
+	t.Helper()
+	words := map[string]string{"pass": "✓ Pass:", "note": "ℹ\uFE0E Note:", "warn": "⚠\uFE0E Check:", "fail": "✗ Fail:"}
+	shown := eval[[]string](p, fmt.Sprintf(`[...document.querySelectorAll(%q)].map(li => li.textContent)`, sel+" .findings li"))
+	findings := resp["findings"].([]any)
+	if len(shown) != len(findings) {
+		t.Fatalf("%s shows %d findings %q, want %d", sel, len(shown), shown, len(findings))
+	}
+	for i, f := range findings {
+		f := f.(map[string]any)
+		want := words[f["level"].(string)] + " " + f["text"].(string)
+		if shown[i] != want {
+			t.Errorf("%s finding %d = %q, want %q", sel, i, shown[i], want)
+		}
+	}
+}
+
+func openChecks(t *testing.T) *page {
+	t.Helper()
+	p := openPage(t, "")
+	p.showView("check")
+	return p
+}
+
+func (p *page) showPart(name string) {
+	p.t.Helper()
+	p.do(chromedp.Click(chromedp.CSS(fmt.Sprintf(`#view-check button[data-part=%q]`, name))))
+}
+
+func TestCheckViewDemoMatchesAPI(t *testing.T) {
+	p := openChecks(t)
+	resp := native(t, api.Check, demoClearance)
+	wantShown(t, p, "#check-results", resp)
+	// The demo is a filter as rated, with a balanced mass balance and the
+	// uncertainty analysis on (README, check).
+	if resp["verdict"] != "as_rated" || resp["uncertainty"] == nil {
+		t.Fatalf("demo check: verdict %v, uncertainty %v; want as_rated with an uncertainty", resp["verdict"], resp["uncertainty"])
+	}
+	wantVerdict(t, p, "#check-results", "pass", "✓", "PASS", "As rated")
+	wantFindings(t, p, "#check-results", resp)
+	if mark := eval[string](p, `document.querySelector('#check-results [data-mark]').textContent`); mark != "✓ within" {
+		t.Errorf("mass balance mark %q, want %q", mark, "✓ within")
+	}
+	p.screenshot("check-clearance-landscape-1024x768")
+	noSideScroll(t, p, "field checks, landscape 1024x768")
+
+	p.showPart("conductivity")
+	wantShown(t, p, "#cond-results", native(t, api.Dialysance, demoConductivity))
+	cond := native(t, api.Dialysance, demoConductivity)
+	wantVerdict(t, p, "#cond-results", "pass", "✓", "PASS", "As rated")
+	wantFindings(t, p, "#cond-results", cond)
+	p.screenshot("check-conductivity-landscape-1024x768")
+
+	p.showPart("timed")
+	blood, dialysate := native(t, api.FlowCheck, demoBlood), native(t, api.FlowCheck, demoDialysate)
+	wantShown(t, p, "#flow-blood-results", blood)
+	wantShown(t, p, "#flow-dialysate-results", dialysate)
+	wantVerdict(t, p, "#flow-blood-results", "pass", "✓", "PASS", "Within tolerance")
+	wantFindings(t, p, "#flow-dialysate-results", dialysate)
+	p.screenshot("check-timed-landscape-1024x768")
+	noSideScroll(t, p, "timed flows, landscape 1024x768")
+
+	p.do(chromedp.EmulateViewport(768, 1024))
+	p.showPart("clearance")
+	p.screenshot("check-clearance-portrait-768x1024")
+	noSideScroll(t, p, "field checks, portrait 768x1024")
+}
+
+// Typing readings of reversed dialysate lines, with a decimal comma: the
+// verdict turns to a failure that says so. The samples are those of a
+// KoA 800 filter run co-current at QB 300, QD 500 (core.Evaluate gives
+// CBo 38.38, CDo 36.97 in a CBi of 100; rounded to two decimals).
+func TestCheckViewReversedLines(t *testing.T) {
+	p := openChecks(t)
+	p.typeInto("#check-qf", "")
+	p.typeInto("#check-cbo", "38,38")
+	p.typeInto("#check-cdo", "36,97")
+	req := map[string]string{}
+	for k, v := range demoClearance {
+		req[k] = v
+	}
+	req["qf"], req["cbo"], req["cdo"] = "", "38,38", "36,97"
+	resp := native(t, api.Check, req)
+	if resp["verdict"] != "fits_cocurrent" {
+		t.Fatalf("native verdict %v, want fits_cocurrent", resp["verdict"])
+	}
+	wantShown(t, p, "#check-results", resp)
+	wantVerdict(t, p, "#check-results", "fail", "✗", "FAIL", "Fits co-current flow: dialysate lines reversed?")
+	wantFindings(t, p, "#check-results", resp)
+	p.screenshot("check-clearance-reversed-lines")
+}
+
+// Samples near the ceiling with an analyser that reads to 1 mg/dL (±0.5):
+// the KoA's 95 % range has no upper end, and the page says so in words.
+func TestCheckViewUnboundedKoA(t *testing.T) {
+	p := openChecks(t)
+	p.typeInto("#check-cbo", "0.4")
+	p.typeInto("#check-cdo", "59")
+	req := map[string]string{}
+	for k, v := range demoClearance {
+		req[k] = v
+	}
+	req["cbo"], req["cdo"] = "0.4", "59"
+	resp := native(t, api.Check, req)
+	wantShown(t, p, "#check-results", resp)
+	if got := eval[string](p, `document.querySelector('#check-results [data-out="uncertainty.koa_countercurrent.high"]').textContent`); got != "no bound" {
+		t.Errorf("KoA upper end shows %q, want %q", got, "no bound")
+	}
+	if n := eval[int](p, `document.querySelectorAll('#check-results .findings li[data-code="koa_unbounded"]').length`); n != 1 {
+		t.Errorf("%d koa_unbounded findings shown, want 1", n)
+	}
+}
+
+// Each impossible reading shows its error beside its field, marks the
+// field, shows the results as stale, and clears when corrected.
+func TestCheckViewFieldErrors(t *testing.T) {
+	p := openChecks(t)
+	for _, c := range []struct {
+		part, form, input, text, field, says, good string
+	}{
+		{"clearance", "#check-form", "#check-cbo", "120", "cbo", "above the blood inlet", "19"},
+		{"clearance", "#check-form", "#check-qd", "0", "qd", "greater than 0", "500"},
+		{"clearance", "#check-form", "#check-qf", "-3", "qf", "must not be negative", "10"},
+		{"clearance", "#check-form", "#check-concentration-uncertainty-percent", "80", "concentration_uncertainty_percent", "at most 50", "2"},
+		{"conductivity", "#cond-form", "#cond-cdi2", "14,5", "cdi2", "two different inlet levels", "13.50"},
+		{"conductivity", "#cond-form", "#cond-cdi2", "14,45", "cdi2", "too close", "13.50"},
+		{"conductivity", "#cond-form", "#cond-cdo2", "13", "cdo2", "larger than the inlet step", "13.75"},
+		{"timed", "#flow-blood-form", "#flow-blood-volume", "", "volume", "is required", "296"},
+		{"timed", "#flow-blood-form", "#flow-blood-seconds", "0,5", "seconds", "too short", "60"},
+		{"timed", "#flow-dialysate-form", "#flow-dialysate-density", "", "density", "is required", "0.993"},
+	} {
+		p.showPart(c.part)
+		p.reveal(c.input)
+		p.typeInto(c.input, c.text)
+		slot := c.form + ` [data-error-for="` + c.field + `"]`
+		if msg := eval[string](p, fmt.Sprintf(`document.querySelector(%q).textContent`, slot)); !strings.Contains(msg, c.says) {
+			t.Errorf("%s = %q: beside it %q, want %q", c.input, c.text, msg, c.says)
+		}
+		// The slot is the one next to the input (same .field).
+		if same := eval[bool](p, fmt.Sprintf(`document.querySelector(%q).closest('.field') === document.querySelector(%q).closest('.field')`, c.input, slot)); !same {
+			t.Errorf("%s: its error slot is not beside it", c.input)
+		}
+		if inv := eval[string](p, fmt.Sprintf(`document.querySelector(%q).getAttribute('aria-invalid') || ''`, c.input)); inv != "true" {
+			t.Errorf("%s = %q: aria-invalid %q, want true", c.input, c.text, inv)
+		}
+		results := eval[string](p, fmt.Sprintf(`document.querySelector(%q).closest('.part, .timed-card').querySelector('.results').dataset.state`, c.input))
+		if results != "error" {
+			t.Errorf("%s = %q: results state %q, want error", c.input, c.text, results)
+		}
+		p.typeInto(c.input, c.good)
+		if msg := eval[string](p, fmt.Sprintf(`document.querySelector(%q).textContent`, slot)); msg != "" {
+			t.Errorf("%s back to %q: error %q still shown", c.input, c.good, msg)
+		}
+	}
+	if msgs := eval[string](p, `[...document.querySelectorAll('#view-check [data-error-for]')].map(e => e.textContent).join('')`); msgs != "" {
+		t.Errorf("after correcting every field, errors still shown: %q", msgs)
+	}
+}
+
+// The dialysate collection measured by volume instead of by weight: the
+// mass and density fields go, the volume field comes, and the request
+// changes with them.
+func TestCheckViewMeasureToggle(t *testing.T) {
+	p := openChecks(t)
+	p.showPart("timed")
+	card := `.timed-card[data-circuit="dialysate"]`
+	p.do(chromedp.Click(chromedp.CSS(card + ` [data-measure="volume"]`)))
+	if hidden := eval[[]bool](p, fmt.Sprintf(`[...document.querySelectorAll(%q)].map(e => e.closest('.measure').hidden)`, card+` input[name="volume"], `+card+` input[name="mass"], `+card+` input[name="density"]`)); fmt.Sprint(hidden) != "[false true true]" {
+		t.Errorf("by volume: volume, mass, density hidden = %v, want [false true true]", hidden)
+	}
+	// No volume entered yet: the error is beside the volume field.
+	if msg := eval[string](p, `document.querySelector('#flow-dialysate-form [data-error-for="volume"]').textContent`); !strings.Contains(msg, "is required") {
+		t.Errorf("by volume with none entered: %q, want volume is required", msg)
+	}
+	p.typeInto("#flow-dialysate-volume", "1530")
+	resp := native(t, api.FlowCheck, map[string]string{"set_flow": "500", "seconds": "300", "volume": "1530", "tolerance_percent": "5", "circuit": "dialysate"})
+	wantShown(t, p, "#flow-dialysate-results", resp)
+	// 1530 mL in 300 s is 306 mL/min against 500: far outside ±5 %.
+	wantVerdict(t, p, "#flow-dialysate-results", "fail", "✗", "FAIL", "Outside tolerance")
+}
+
+// The view's handle (views.js): a snapshot holds the check on screen
+// only; restored after the inputs were changed, it brings back the same
+// results; inputs() holds every check, as it stands.
+func TestCheckViewSnapshotRestore(t *testing.T) {
+	p := openChecks(t)
+	p.showPart("conductivity")
+	handle := `import('./js/views.js').then(m => m.views.get('check'))`
+	before := eval[string](p, handle+`.then(h => JSON.stringify(h.snapshot()))`)
+	var snap struct {
+		View   string                     `json:"view"`
+		Inputs map[string]json.RawMessage `json:"inputs"`
+		Result map[string]json.RawMessage `json:"result"`
+	}
+	if err := json.Unmarshal([]byte(before), &snap); err != nil {
+		t.Fatalf("snapshot %s: %v", before, err)
+	}
+	if snap.View != "check" || string(snap.Inputs["part"]) != `"conductivity"` || len(snap.Inputs) != 2 || len(snap.Result) != 1 || snap.Result["conductivity"] == nil {
+		t.Fatalf("snapshot %s: want view check with the conductivity inputs and result only", before)
+	}
+	p.typeInto("#cond-cdo1", "14,1")
+	p.showPart("timed")
+	p.typeInto("#flow-blood-volume", "250")
+	after := eval[string](p, handle+`.then(h => { h.restore(`+before+`.inputs); return JSON.stringify(h.snapshot()); })`)
+	if after != before {
+		t.Errorf("restore then snapshot =\n%s\nwant\n%s", after, before)
+	}
+	if v := eval[bool](p, `!document.querySelector('#view-check .part[data-part="conductivity"]').hidden`); !v {
+		t.Errorf("after restore the conductivity part is not shown")
+	}
+	// inputs() has every check, the blood pump as last typed.
+	var all map[string]map[string]string
+	if err := json.Unmarshal([]byte(eval[string](p, handle+`.then(h => JSON.stringify(Object.fromEntries(Object.entries(h.inputs()).filter(([k]) => k !== 'part'))))`)), &all); err != nil {
+		t.Fatal(err)
+	}
+	if len(all) != 4 || all["blood"]["volume"] != "250" || all["blood"]["measure"] != "volume" || all["dialysate"]["measure"] != "mass" || all["clearance"]["cbo"] != "19" {
+		t.Errorf("inputs() = %v, want four checks, the blood volume 250", all)
+	}
+	// While the check on screen is in error there is nothing to save.
+	p.typeInto("#cond-qd", "0")
+	if s := eval[string](p, handle+`.then(h => JSON.stringify(h.snapshot()))`); s != "null" {
+		t.Errorf("conductivity in error: snapshot %s, want null", s)
+	}
+	// The timed flows save while one circuit is valid, with the other null.
+	p.showPart("timed")
+	p.typeInto("#flow-dialysate-seconds", "")
+	var timed struct {
+		Result map[string]json.RawMessage `json:"result"`
+	}
+	if err := json.Unmarshal([]byte(eval[string](p, handle+`.then(h => JSON.stringify(h.snapshot()))`)), &timed); err != nil {
+		t.Fatal(err)
+	}
+	if string(timed.Result["dialysate"]) != "null" || timed.Result["blood"] == nil || string(timed.Result["blood"]) == "null" {
+		t.Errorf("timed snapshot result %v, want the blood pump's and a null dialysate", timed.Result)
+	}
+}
+
+// Every control of every part is at least 44 x 44 px (WCAG 2.2 target
+// size, enhanced, 2.5.5), every input has a visible label and a unit.
+func TestCheckViewTouchTargets(t *testing.T) {
+	p := openChecks(t)
+	for _, part := range []string{"clearance", "conductivity", "timed"} {
+		p.showPart(part)
+		eval[bool](p, `(() => { for (const d of document.querySelectorAll('#view-check details')) d.open = true; return true; })()`)
+		small := eval[[]string](p, `[...document.querySelectorAll('#view-check button, #view-check input, #view-check summary')].filter(e => e.offsetParent !== null).filter(e => { const r = e.getBoundingClientRect(); return r.height < 44 || r.width < 44; }).map(e => e.id || e.name || e.textContent.trim())`)
+		if len(small) > 0 {
+			t.Errorf("%s: controls smaller than 44 x 44 px: %v", part, small)
+		}
+		bare := eval[[]string](p, `[...document.querySelectorAll('#view-check input')].filter(e => e.offsetParent !== null).filter(e => { const l = document.querySelector('label[for="' + e.id + '"]'); const u = e.parentElement.querySelector('.unit'); return !l || l.offsetParent === null || !l.textContent.trim() || !u || !u.textContent.trim(); }).map(e => e.id)`)
+		if len(bare) > 0 {
+			t.Errorf("%s: inputs without a visible label or unit: %v", part, bare)
+		}
+	}
+}

@@ -1,0 +1,261 @@
+// check-view.js: the "Field checks" view, three checks an engineer runs in
+// front of a machine: a clearance test (clearkit.check), conductivity
+// dialysance (clearkit.dialysance) and timed collections of the blood pump
+// and the dialysate flow (clearkit.flowcheck). Every number and every
+// verdict comes from the API; this module only shows them.
+
+import { readForm, fillForm, showError } from './form.js';
+import { renderOutputs, at } from './format.js';
+
+// Demo values: an invented loaner machine on a bench, urea test solution
+// in mg/dL, a filter rated KoA 800 mL/min.
+export const DEMO = {
+  clearance: {
+    qb: '300', qd: '500', qf: '10', koa: '800', cbi: '100', cbo: '19', cdi: '', cdo: '46.3',
+    mass_balance_tolerance_percent: '', clearance_tolerance_percent: '',
+    concentration_uncertainty_percent: '2', concentration_uncertainty_floor: '0.5', flow_uncertainty_percent: '3',
+  },
+  conductivity: {
+    qd: '500', qf: '10', cdi1: '14.50', cdo1: '14.25', cdi2: '13.50', cdo2: '13.75', resolution: '',
+    qb: '300', koa: '800', tolerance_percent: '',
+  },
+  blood: { measure: 'volume', set_flow: '300', seconds: '60', volume: '296', mass: '', density: '', tolerance_percent: '10' },
+  dialysate: { measure: 'mass', set_flow: '500', seconds: '300', volume: '', mass: '2490', density: '0.993', tolerance_percent: '5' },
+};
+
+// Finding levels in symbols and words, so that no verdict rests on colour.
+// The variation selector keeps the symbols in text style.
+const LEVELS = {
+  pass: { symbol: '✓', word: 'Pass' },
+  note: { symbol: 'ℹ\uFE0E', word: 'Note' },
+  warn: { symbol: '⚠\uFE0E', word: 'Check' },
+  fail: { symbol: '✗', word: 'Fail' },
+};
+const RANK = { note: 0, pass: 1, warn: 2, fail: 3 };
+
+// Labels of the verdict codes (README: check and dialysance).
+const VERDICTS = {
+  as_rated: 'As rated',
+  below_rating: 'Below rating',
+  fits_cocurrent: 'Fits co-current flow: dialysate lines reversed?',
+  above_rating: 'Above rating: recheck',
+  beyond_ceiling: 'Beyond what any filter gives',
+  not_rated: 'Not compared with a rating',
+  flow_within: 'Within tolerance',
+  flow_outside: 'Outside tolerance',
+};
+
+// bannerLevel is the level the verdict banner shows: the worst finding,
+// leaving notes aside unless there is nothing else.
+function bannerLevel(findings) {
+  let level = 'note';
+  for (const f of findings) {
+    if (f.level !== 'note' && (level === 'note' || RANK[f.level] > RANK[level])) level = f.level;
+  }
+  return level;
+}
+
+function showVerdict(banner, level, code) {
+  banner.dataset.level = level;
+  banner.querySelector('.verdict-symbol').textContent = LEVELS[level].symbol;
+  banner.querySelector('.verdict-word').textContent = LEVELS[level].word.toUpperCase();
+  banner.querySelector('.verdict-label').textContent = VERDICTS[code] ?? '';
+}
+
+function showFindings(list, findings) {
+  list.replaceChildren(...findings.map((f) => {
+    const li = document.createElement('li');
+    li.dataset.level = f.level;
+    li.dataset.code = f.code;
+    const symbol = document.createElement('span');
+    symbol.className = 'finding-symbol';
+    symbol.setAttribute('aria-hidden', 'true');
+    symbol.textContent = LEVELS[f.level].symbol;
+    const word = document.createElement('strong');
+    word.className = 'finding-word';
+    word.textContent = `${LEVELS[f.level].word}:`;
+    li.append(symbol, ' ', word, ' ', f.text);
+    return li;
+  }));
+}
+
+// showNulls puts words where a number is null ("cannot reach", "no
+// bound"): an output with data-null shows it when its value is null, and a
+// dash when its part of the response is absent (no uncertainty asked).
+function showNulls(root, data) {
+  for (const out of root.querySelectorAll('output[data-null]')) {
+    const value = at(data, out.dataset.out);
+    if (value === null) out.textContent = out.dataset.null;
+  }
+  // A range whose low end is null or absent says so in one word: the
+  // " to ..." part is hidden.
+  for (const range of root.querySelectorAll('.range')) {
+    const [low, ...rest] = range.querySelectorAll('output, .range-to');
+    for (const el of rest) el.hidden = low.dataset.value === '';
+  }
+}
+
+// A calculation bound to one form: on every input it asks the API and
+// shows the answer, or the error beside its field with the results marked
+// stale. request(form) builds the request; render(results, response)
+// shows the rest.
+function bindCalculation(engine, name, form, results, request, render) {
+  const state = { last: null };
+  state.update = () => {
+    const response = engine.call(name, request());
+    if (!response.ok) {
+      showError(form, response.error);
+      results.classList.add('stale');
+      results.dataset.state = 'error';
+      state.last = null;
+      return;
+    }
+    showError(form, null);
+    results.classList.remove('stale');
+    results.dataset.state = 'ok';
+    state.last = response;
+    renderOutputs(results, response);
+    showNulls(results, response);
+    render(response);
+  };
+  form.addEventListener('input', state.update);
+  form.addEventListener('submit', (event) => event.preventDefault());
+  return state;
+}
+
+// mountCheck wires the view in root and returns its handle (views.js):
+// snapshot() gives {view, inputs, result} for the check on screen only, so
+// that a service record holds what was checked: inputs {part, NAME: the
+// form's texts} and result {NAME: the API response}, NAME being clearance,
+// conductivity, or blood and dialysate for the timed flows (a circuit in
+// error gives a null result); it is null while the check on screen cannot
+// be computed. inputs() gives every check's inputs as they stand, and
+// restore(inputs) takes either: it fills the checks present, shows the
+// part named and recomputes.
+export function mountCheck(root, engine) {
+  const parts = root.querySelectorAll('.part');
+  const partButtons = root.querySelectorAll('[data-part]:not(.part)');
+  let part = 'clearance';
+
+  function showPart(name) {
+    part = name;
+    for (const p of parts) p.hidden = p.dataset.part !== name;
+    for (const b of partButtons) b.setAttribute('aria-pressed', String(b.dataset.part === name));
+  }
+  for (const b of partButtons) b.addEventListener('click', () => showPart(b.dataset.part));
+
+  // Clearance test.
+  const checkForm = root.querySelector('#check-form');
+  const checkResults = root.querySelector('#check-results');
+  const clearance = bindCalculation(engine, 'check', checkForm, checkResults, () => readForm(checkForm), (r) => {
+    showVerdict(checkResults.querySelector('.verdict'), bannerLevel(r.findings), r.verdict);
+    const mark = checkResults.querySelector('[data-mark="mass_balance_ok"]');
+    mark.textContent = r.mass_balance_ok ? `${LEVELS.pass.symbol} within` : `${LEVELS.fail.symbol} outside`;
+    mark.dataset.level = r.mass_balance_ok ? 'pass' : 'fail';
+    showFindings(checkResults.querySelector('.findings'), r.findings);
+  });
+
+  // Conductivity.
+  const condForm = root.querySelector('#cond-form');
+  const condResults = root.querySelector('#cond-results');
+  const conductivity = bindCalculation(engine, 'dialysance', condForm, condResults, () => readForm(condForm), (r) => {
+    showVerdict(condResults.querySelector('.verdict'), bannerLevel(r.findings), r.verdict);
+    showFindings(condResults.querySelector('.findings'), r.findings);
+  });
+
+  // Timed flows: one form per circuit, measured by volume or by weight.
+  const timed = {};
+  for (const card of root.querySelectorAll('.timed-card')) {
+    const circuit = card.dataset.circuit;
+    const form = card.querySelector('form');
+    const results = card.querySelector('.results');
+    const measureButtons = card.querySelectorAll('[data-measure]');
+    const entry = { measure: 'volume', form };
+    entry.setMeasure = (measure) => {
+      entry.measure = measure;
+      for (const b of measureButtons) b.setAttribute('aria-pressed', String(b.dataset.measure === measure));
+      for (const m of card.querySelectorAll('[data-measure-for]')) m.hidden = m.dataset.measureFor !== measure;
+    };
+    const request = () => {
+      const values = readForm(form);
+      if (entry.measure === 'volume') {
+        delete values.mass;
+        delete values.density;
+      } else {
+        delete values.volume;
+      }
+      return { ...values, circuit };
+    };
+    entry.calc = bindCalculation(engine, 'flowcheck', form, results, request, (r) => {
+      showVerdict(results.querySelector('.verdict'), bannerLevel(r.findings), r.within ? 'flow_within' : 'flow_outside');
+      showFindings(results.querySelector('.findings'), r.findings);
+    });
+    for (const b of measureButtons) {
+      b.addEventListener('click', () => {
+        entry.setMeasure(b.dataset.measure);
+        entry.calc.update();
+      });
+    }
+    timed[circuit] = entry;
+  }
+
+  function fillTimed(circuit, values) {
+    const { measure = 'volume', ...rest } = values;
+    timed[circuit].setMeasure(measure);
+    fillForm(timed[circuit].form, rest);
+  }
+
+  function fillAll(inputs) {
+    if (inputs.clearance) fillForm(checkForm, inputs.clearance);
+    if (inputs.conductivity) fillForm(condForm, inputs.conductivity);
+    for (const circuit of Object.keys(timed)) {
+      if (inputs[circuit]) fillTimed(circuit, inputs[circuit]);
+    }
+    updateAll();
+  }
+
+  function updateAll() {
+    clearance.update();
+    conductivity.update();
+    for (const entry of Object.values(timed)) entry.calc.update();
+  }
+
+  for (const p of parts) {
+    const demo = p.querySelector('[data-demo]');
+    if (!demo) continue;
+    demo.addEventListener('click', () => {
+      const name = p.dataset.part;
+      if (name === 'timed') fillAll({ blood: DEMO.blood, dialysate: DEMO.dialysate });
+      else fillAll({ [name]: DEMO[name] });
+    });
+  }
+
+  // The inputs of one check, or of all; timed-flow inputs carry their
+  // measure (volume or mass).
+  const inputsOf = {
+    clearance: () => ({ clearance: readForm(checkForm) }),
+    conductivity: () => ({ conductivity: readForm(condForm) }),
+    timed: () => Object.fromEntries(Object.entries(timed).map(([c, e]) => [c, { measure: e.measure, ...readForm(e.form) }])),
+  };
+  const resultOf = {
+    clearance: () => (clearance.last ? { clearance: clearance.last } : null),
+    conductivity: () => (conductivity.last ? { conductivity: conductivity.last } : null),
+    timed: () => (timed.blood.calc.last || timed.dialysate.calc.last
+      ? { blood: timed.blood.calc.last, dialysate: timed.dialysate.calc.last }
+      : null),
+  };
+
+  fillAll(DEMO);
+  return {
+    name: 'check',
+    snapshot() {
+      const result = resultOf[part]();
+      return result ? { view: 'check', inputs: { part, ...inputsOf[part]() }, result } : null;
+    },
+    inputs: () => ({ part, ...inputsOf.clearance(), ...inputsOf.conductivity(), ...inputsOf.timed() }),
+    restore(inputs) {
+      if (inputs && inputsOf[inputs.part]) showPart(inputs.part);
+      fillAll(inputs || {});
+    },
+  };
+}
