@@ -246,6 +246,7 @@ func TestCheckViewFieldErrors(t *testing.T) {
 	} {
 		p.showPart(c.part)
 		p.reveal(c.input)
+		t.Logf("%s: hidden %v", c.input, eval[bool](p, fmt.Sprintf(`document.querySelector(%q).offsetParent === null`, c.input)))
 		p.typeInto(c.input, c.text)
 		slot := c.form + ` [data-error-for="` + c.field + `"]`
 		if msg := eval[string](p, fmt.Sprintf(`document.querySelector(%q).textContent`, slot)); !strings.Contains(msg, c.says) {
@@ -366,4 +367,46 @@ func TestCheckViewTouchTargets(t *testing.T) {
 			t.Errorf("%s: inputs without a visible label or unit: %v", part, bare)
 		}
 	}
+}
+
+// A field check saved to the service log and opened again: the record
+// holds the check on screen, opening it brings that check back and
+// recomputes the same numbers (report.js), and a reload keeps every
+// check's inputs (last-inputs.js).
+func TestCheckViewSavedRecord(t *testing.T) {
+	p := openChecks(t)
+	p.showPart("timed")
+	p.typeInto("#flow-blood-volume", "281,5")
+	p.saveRecord("check", labels{Site: "Bench 2", Machine: "LOAN-07", Filter: "F-800", Notes: "pump check"})
+	records := storedRecords(p)
+	if len(records) != 1 {
+		t.Fatalf("%d records stored, want 1", len(records))
+	}
+	r := records[0]
+	inputs := r["inputs"].(map[string]any)
+	result := r["result"].(map[string]any)
+	if r["view"] != "check" || inputs["part"] != "timed" || inputs["clearance"] != nil || result["blood"] == nil || result["clearance"] != nil {
+		t.Fatalf("record inputs %v, result keys %v: want the timed flows only", inputs, result)
+	}
+	blood := result["blood"].(map[string]any)
+	want := native(t, api.FlowCheck, map[string]string{"set_flow": "300", "seconds": "60", "volume": "281,5", "tolerance_percent": "10", "circuit": "blood"})
+	if blood["flow"] != want["flow"] || blood["within"] != want["within"] {
+		t.Errorf("saved blood pump flow %v within %v, want %v within %v", blood["flow"], blood["within"], want["flow"], want["within"])
+	}
+	// Change the inputs and the part, then open the record: the timed
+	// flows come back as saved.
+	p.typeInto("#flow-blood-volume", "300")
+	p.showPart("clearance")
+	p.openLog()
+	p.do(chromedp.Click(chromedp.CSS(`[data-log-list] li button`)))
+	if hidden := eval[bool](p, `document.querySelector('#view-check .part[data-part="timed"]').hidden`); hidden {
+		t.Fatal("opening the record did not show the timed flows")
+	}
+	if got := eval[string](p, `document.getElementById('flow-blood-volume').value`); got != "281,5" {
+		t.Errorf("blood volume after opening the record %q, want 281,5", got)
+	}
+	if got := eval[string](p, `document.querySelector('.record-check').dataset.state`); got != "same" {
+		t.Errorf("record check %q, want same", got)
+	}
+	p.screenshot("check-record-opened")
 }
