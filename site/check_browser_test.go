@@ -7,6 +7,7 @@ import (
 	"strconv"
 	"strings"
 	"testing"
+	"time"
 
 	"github.com/chromedp/chromedp"
 
@@ -398,7 +399,10 @@ func TestCheckViewSavedRecord(t *testing.T) {
 	p.typeInto("#flow-blood-volume", "300")
 	p.showPart("clearance")
 	p.openLog()
-	p.do(chromedp.Click(chromedp.CSS(`[data-log-list] li button`)))
+	// The log re-renders its list when its tab opens: wait for the record,
+	// then press Open in one step, so that no re-render comes between.
+	p.waitFor(`document.querySelectorAll('[data-log-list] > li').length === 1`, 5*time.Second)
+	eval[bool](p, `(document.querySelector('[data-log-list] li button').click(), true)`)
 	if hidden := eval[bool](p, `document.querySelector('#view-check .part[data-part="timed"]').hidden`); hidden {
 		t.Fatal("opening the record did not show the timed flows")
 	}
