@@ -3,7 +3,6 @@ package site
 import (
 	"encoding/json"
 	"fmt"
-	"math"
 	"strconv"
 	"strings"
 	"testing"
@@ -69,11 +68,10 @@ type shownOutput struct {
 }
 
 // wantShown checks every output[data-out] in the element sel against the
-// native response: a number equal to within 1e-15 relative (the page runs
-// the same Go code in wasm; math.Log, used by the co-current inverse near
-// its ceiling, is assembly natively and portable Go in wasm and may differ
-// in the last bit), a null as the output's data-null words, an absent part
-// as a dash.
+// native response: a number exactly equal (the page runs the same Go code
+// in wasm, and the check's arithmetic uses no function that is assembly
+// natively, so float64 agrees to the bit and survives JSON exactly), a
+// null as the output's data-null words, an absent part as a dash.
 func wantShown(t *testing.T, p *page, sel string, want map[string]any) {
 	t.Helper()
 	shown := eval[[]shownOutput](p, fmt.Sprintf(`[...document.querySelectorAll(%q)].map(o => ({Path: o.dataset.out, Value: o.dataset.value, Text: o.textContent, Null: o.dataset.null || ''}))`, sel+" output[data-out]"))
@@ -85,7 +83,7 @@ func wantShown(t *testing.T, p *page, sel string, want map[string]any) {
 		switch x := v.(type) {
 		case float64:
 			got, err := strconv.ParseFloat(o.Value, 64)
-			if err != nil || math.Abs(got-x) > 1e-15*math.Abs(x) {
+			if err != nil || got != x {
 				t.Errorf("%s %s = %q (shown %q), want %v", sel, o.Path, o.Value, o.Text, x)
 			}
 		case nil:
