@@ -34,7 +34,11 @@ func (p *page) saveRecord(view string, l labels) {
 	p.t.Helper()
 	p.waitLog()
 	p.do(chromedp.Click(chromedp.CSS(`[data-save-view="` + view + `"]`)))
-	p.waitFor(`document.getElementById('save-dialog').open`, 5*time.Second)
+	if !eval[bool](p, `document.getElementById('save-dialog').open`) {
+		p.t.Fatalf("Save to log in %s opened no dialog; the view says %q (page %s, stored view %s)", view,
+			eval[string](p, `document.querySelector('[data-view="`+view+`"] .save-note').textContent`), p.server.URL,
+			eval[string](p, `localStorage.getItem('clearkit.view') || ''`))
+	}
 	for sel, text := range map[string]string{"#save-site": l.Site, "#save-machine": l.Machine, "#save-filter": l.Filter} {
 		if len(text) <= 40 {
 			p.typeInto(sel, text)
@@ -663,5 +667,45 @@ func TestLogLongListPages(t *testing.T) {
 	p.typeInto("#log-search", "m-248")
 	if items := listed(p); len(items) != 1 || !strings.Contains(items[0], "M-248") {
 		t.Errorf("search m-248 lists %d records", len(items))
+	}
+}
+
+// Every registered view saves to the log, and its record opens again with
+// the same results (this build recomputes them to the bit).
+func TestLogEveryView(t *testing.T) {
+	p := openPage(t, "")
+	p.waitLog()
+	names := eval[[]string](p, `import('./js/views.js').then(m => [...m.views.keys()])`)
+	if len(names) == 0 {
+		t.Fatal("no view registered")
+	}
+	for _, name := range names {
+		p.do(chromedp.Click(chromedp.CSS(`.view-tab[data-view="` + name + `"]`)))
+		p.saveRecord(name, labels{"Every view", "M-" + name, "F", ""})
+	}
+	recs := storedRecords(p)
+	if len(recs) != len(names) {
+		t.Fatalf("%d records for %d views", len(recs), len(names))
+	}
+	p.reload()
+	for i := range names {
+		p.openLog()
+		// Newest first: record i is view names[len-1-i].
+		name := names[len(names)-1-i]
+		p.do(chromedp.Click(chromedp.CSS(fmt.Sprintf(`[data-log-list] > li:nth-child(%d) button`, i+1))))
+		if hidden := eval[bool](p, `document.getElementById('view-`+name+`').hidden`); hidden {
+			t.Errorf("opening the %s record did not show its view", name)
+			continue
+		}
+		if state := eval[string](p, `document.querySelector('#view-`+name+` .record-check').dataset.state`); state != "same" {
+			t.Errorf("%s record: check %q (%s), want same", name, state, eval[string](p, `document.querySelector('.record-banner').textContent`))
+		}
+		p.screenshot("log-record-opened-" + name)
+	}
+	p.openLog()
+	_, csv := p.download(`[data-log="export-csv"]`)
+	rows, err := readCSV(strings.TrimPrefix(string(csv), "\uFEFF"))
+	if err != nil || len(rows) != len(names)+1 {
+		t.Errorf("CSV of every view: %d rows, %v", len(rows), err)
 	}
 }

@@ -114,7 +114,7 @@ func TestOfflineUpdateWaitsForTheUser(t *testing.T) {
 	if state != "update" {
 		t.Fatalf("offline state %q after a new build, want update", state)
 	}
-	if hidden := eval[bool](p, `document.querySelector('[data-offline-update]').hidden`); hidden {
+	if !visible(p, `[data-offline-update]`) {
 		t.Fatal("the update button is hidden while an update waits")
 	}
 	// The old build still answers until the user chooses.

@@ -49,7 +49,10 @@ func TestReportPrint(t *testing.T) {
 			t.Errorf("printed, %s shows; want it left out", sel)
 		}
 	}
-	for _, sel := range []string{".brand-name", ".record-banner", "#compare-qb", ".cards", "#compare-chart", ".foot"} {
+	if n := eval[int](p, `[...document.querySelectorAll('main button')].filter(b => b.checkVisibility()).length`); n != 1 {
+		t.Errorf("printed, %d buttons show; want only the chosen chart axis", n)
+	}
+	for _, sel := range []string{".brand-name", ".record-banner", "#compare-qb", ".cards", "#compare-chart", ".foot", `[data-axis="qb"]`} {
 		if !visible(p, sel) {
 			t.Errorf("printed, %s is missing", sel)
 		}

@@ -42,4 +42,4 @@ async function start() {
 
 // The service worker is registered once the calculator has started, so that
 // storing the offline copy does not slow the first start.
-start().finally(() => startOffline(document.getElementById('offline-status')));
+start().finally(() => startOffline(document.getElementById('offline-status'), document.getElementById('update-bar')));

@@ -3,15 +3,16 @@
 // when an update is waiting (with a button that reloads into it).
 
 // startOffline registers the worker. box holds a text element
-// [data-offline-text] and a button [data-offline-update]; box.dataset.state
-// is one of: unsupported, installing, ready, update, failed.
-export function startOffline(box) {
+// [data-offline-text]; box.dataset.state is one of: unsupported,
+// installing, ready, update, failed. bar is shown while an update waits and
+// holds the button [data-offline-update] that reloads into it.
+export function startOffline(box, bar) {
   const text = box.querySelector('[data-offline-text]');
-  const button = box.querySelector('[data-offline-update]');
+  const button = bar.querySelector('[data-offline-update]');
   const say = (state, message) => {
     box.dataset.state = state;
     text.textContent = message;
-    button.hidden = state !== 'update';
+    bar.hidden = state !== 'update';
   };
 
   if (!('serviceWorker' in navigator)) {
@@ -28,7 +29,7 @@ export function startOffline(box) {
     if (!waiting) return;
     updating = true;
     button.disabled = true;
-    text.textContent = 'Updating…';
+    button.textContent = 'Updating…';
     waiting.postMessage({ type: 'activate-update' });
   });
   // The page reloads only when the user asked for the update: the first
@@ -39,11 +40,11 @@ export function startOffline(box) {
 
   const offerUpdate = (worker) => {
     waiting = worker;
-    say('update', 'An update of ClearKit is ready.');
+    say('update', 'Ready to work offline; an update waits');
   };
   const watch = (reg, worker) => {
     // An update downloads quietly; only the first install is news.
-    if (!sw.controller && !reg.active) say('installing', 'Storing ClearKit for offline use…');
+    if (!sw.controller && !reg.active) say('installing', 'Saving for offline use…');
     worker.addEventListener('statechange', () => {
       if (worker.state === 'installed' && sw.controller) offerUpdate(worker);
       else if (worker.state === 'activated' && !updating) say('ready', 'Ready to work offline');
