@@ -21,7 +21,7 @@ import (
 func init() {
 	entries := append([]api.Entry{
 		{Name: "boom", Call: func([]byte) []byte { panic("forced for the test") }},
-		{Name: "echo", Call: func(b []byte) []byte { return b }},
+		echo,
 	}, api.Entries...)
 	if err := publish("clearkitTest", entries); err != nil {
 		panic(err)

@@ -2,7 +2,6 @@ package api
 
 import (
 	"math"
-	"regexp"
 	"strconv"
 	"strings"
 
@@ -23,10 +22,46 @@ func (n *Number) UnmarshalJSON(b []byte) error {
 // N returns a Number holding v, for building requests in Go.
 func N(v float64) Number { return Number{raw: strconv.AppendFloat(nil, v, 'g', -1, 64)} }
 
-// decimal is the accepted form of a number written in a string: the JSON
-// number grammar, with a leading '+', a leading or trailing point and a
-// decimal comma tolerated. "NaN", "Inf" and hexadecimal are not numbers here.
-var decimal = regexp.MustCompile(`^[+-]?([0-9]+([.,][0-9]*)?|[.,][0-9]+)([eE][+-]?[0-9]+)?$`)
+// isDecimal reports whether s is the accepted form of a number written in
+// a string: the JSON number grammar, with a leading '+', a leading or
+// trailing point and a decimal comma tolerated, that is
+//
+//	[+-]? ( digits ([.,] digits?)? | [.,] digits ) ([eE] [+-]? digits)?
+//
+// "NaN", "Inf" and hexadecimal are not numbers here. (A hand-written
+// matcher rather than a regular expression: the regexp package would add
+// some 200 KB to the WebAssembly module.)
+func isDecimal(s string) bool {
+	i := 0
+	digits := func() int {
+		start := i
+		for i < len(s) && s[i] >= '0' && s[i] <= '9' {
+			i++
+		}
+		return i - start
+	}
+	if i < len(s) && (s[i] == '+' || s[i] == '-') {
+		i++
+	}
+	mantissa := digits()
+	if i < len(s) && (s[i] == '.' || s[i] == ',') {
+		i++
+		mantissa += digits()
+	}
+	if mantissa == 0 {
+		return false
+	}
+	if i < len(s) && (s[i] == 'e' || s[i] == 'E') {
+		i++
+		if i < len(s) && (s[i] == '+' || s[i] == '-') {
+			i++
+		}
+		if digits() == 0 {
+			return false
+		}
+	}
+	return i == len(s)
+}
 
 // value returns the number and whether it was given at all.
 func (n Number) value(field string) (float64, bool, error) {
@@ -44,7 +79,7 @@ func (n Number) value(field string) (float64, bool, error) {
 		if s == "" {
 			return 0, false, nil
 		}
-		if !decimal.MatchString(s) {
+		if !isDecimal(s) {
 			return 0, false, fieldErr(field, "must be a number (got "+strconv.Quote(clip(s))+")")
 		}
 		raw = strings.Replace(s, ",", ".", 1)

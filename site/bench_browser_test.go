@@ -1,0 +1,90 @@
+//go:build bench
+
+package site
+
+// Browser benchmarks, run by ./build.sh bench (go test -tags bench): they
+// print figures and assert nothing (speed is reported, not asserted). Both
+// run in headless Chromium with the page's main thread slowed 4x
+// (emulation.SetCPUThrottlingRate), and are timed inside the page with
+// performance.now().
+
+import (
+	"fmt"
+	"slices"
+	"testing"
+
+	"github.com/chromedp/cdproto/emulation"
+	"github.com/chromedp/chromedp"
+)
+
+const (
+	benchThrottle = 4
+	benchReloads  = 15  // timed start-ups, after one untimed
+	benchInputs   = 200 // timed inputs, after 60 untimed
+)
+
+// TestBenchBrowser: (1) navigation to the first computed result with the
+// service worker's cache warm: the page is installed for offline use, then
+// reloaded; the figure is the time from the start of navigation to the
+// mark main.js sets once every view has computed and drawn its first
+// result (performance.mark 'clearkit:ready'). (2) Input to updated results
+// and charts: a new QB in the compare view's input, an input event, and
+// a forced style and layout of the results and the chart; the figure runs
+// from before the event to after the layout (painting is not included).
+func TestBenchBrowser(t *testing.T) {
+	p := openPage(t, "")
+	waitOffline(p)
+	if _, err := chromedp.Call(p.ctx, emulation.SetCPUThrottlingRate, emulation.SetCPUThrottlingRateParams{Rate: benchThrottle}); err != nil {
+		t.Fatal(err)
+	}
+	var ready, wasmDone, domDone []float64
+	for i := range benchReloads + 1 {
+		p.reload()
+		if !eval[bool](p, `Boolean(navigator.serviceWorker.controller)`) {
+			t.Fatal("after a reload the service worker does not control the page")
+		}
+		if i == 0 {
+			continue
+		}
+		ready = append(ready, eval[float64](p, `performance.getEntriesByName('clearkit:ready')[0].startTime`))
+		wasmDone = append(wasmDone, eval[float64](p, `performance.getEntriesByName(new URL('clearkit.wasm', location.href).href)[0].responseEnd`))
+		domDone = append(domDone, eval[float64](p, `performance.getEntriesByType('navigation')[0].domContentLoadedEventEnd`))
+	}
+	if testing.Verbose() {
+		fmt.Println(eval[string](p, `performance.getEntriesByType('resource').map(e => e.name.split('/').pop().padEnd(24) + ' start ' + e.startTime.toFixed(0).padStart(5) + ' workerStart ' + e.workerStart.toFixed(0).padStart(5) + ' end ' + e.responseEnd.toFixed(0).padStart(5)).join('\n')`))
+	}
+	fmt.Printf("bench: browser, Chromium headless, CPU throttled %dx, service worker cache warm, %d reloads:\n", benchThrottle, benchReloads)
+	fmt.Printf("  navigation to first computed result  median %6.1f ms  p95 %6.1f ms  (target median <= 600 ms)\n", quantile(ready, 0.5), quantile(ready, 0.95))
+	fmt.Printf("    of which DOMContentLoaded           median %6.1f ms, clearkit.wasm received %6.1f ms\n", quantile(domDone, 0.5), quantile(wasmDone, 0.5))
+
+	times := eval[[]float64](p, fmt.Sprintf(`(async () => {
+		const view = document.querySelector('section.view[data-view="compare"]');
+		const input = view.querySelector('input[name="qb"]');
+		const results = view.querySelector('.results');
+		const chart = view.querySelector('svg.chart');
+		const times = [];
+		for (let i = 0; i < %d; i++) {
+			await new Promise((r) => requestAnimationFrame(() => setTimeout(r, 0)));
+			input.value = String(250 + (i %% 100));
+			const t0 = performance.now();
+			input.dispatchEvent(new Event('input', { bubbles: true }));
+			results.getBoundingClientRect();
+			chart.getBoundingClientRect();
+			times.push(performance.now() - t0);
+		}
+		return times.slice(60);
+	})()`, benchInputs+60))
+	// The last input (QB 309) must have been computed and shown.
+	if state, shown := eval[string](p, `document.querySelector('#view-compare .results').dataset.state`),
+		eval[string](p, `document.querySelector('#view-compare input[name="qb"]').value`); state != "ok" || shown != "309" {
+		t.Fatalf("after the inputs: results state %q, QB %q, want ok and 309", state, shown)
+	}
+	fmt.Printf("  input to updated results and charts  median %6.2f ms  p95 %6.2f ms  (targets 8 ms and 16 ms; %d inputs)\n", quantile(times, 0.5), quantile(times, 0.95), len(times))
+}
+
+// quantile returns the q quantile of xs (nearest rank).
+func quantile(xs []float64, q float64) float64 {
+	s := slices.Sorted(slices.Values(xs))
+	i := int(q*float64(len(s)) + 0.5)
+	return s[min(max(i-1, 0), len(s)-1)]
+}
