@@ -50,9 +50,6 @@ func TestBenchBrowser(t *testing.T) {
 		wasmDone = append(wasmDone, eval[float64](p, `performance.getEntriesByName(new URL('clearkit.wasm', location.href).href)[0].responseEnd`))
 		domDone = append(domDone, eval[float64](p, `performance.getEntriesByType('navigation')[0].domContentLoadedEventEnd`))
 	}
-	if testing.Verbose() {
-		fmt.Println(eval[string](p, `performance.getEntriesByType('resource').map(e => e.name.split('/').pop().padEnd(24) + ' start ' + e.startTime.toFixed(0).padStart(5) + ' workerStart ' + e.workerStart.toFixed(0).padStart(5) + ' end ' + e.responseEnd.toFixed(0).padStart(5)).join('\n')`))
-	}
 	fmt.Printf("bench: browser, Chromium headless, CPU throttled %dx, service worker cache warm, %d reloads:\n", benchThrottle, benchReloads)
 	fmt.Printf("  navigation to first computed result  median %6.1f ms  p95 %6.1f ms  (target median <= 600 ms)\n", quantile(ready, 0.5), quantile(ready, 0.95))
 	fmt.Printf("    of which DOMContentLoaded           median %6.1f ms, clearkit.wasm received %6.1f ms\n", quantile(domDone, 0.5), quantile(wasmDone, 0.5))
@@ -80,6 +77,38 @@ func TestBenchBrowser(t *testing.T) {
 		t.Fatalf("after the inputs: results state %q, QB %q, want ok and 309", state, shown)
 	}
 	fmt.Printf("  input to updated results and charts  median %6.2f ms  p95 %6.2f ms  (targets 8 ms and 16 ms; %d inputs)\n", quantile(times, 0.5), quantile(times, 0.95), len(times))
+	// The share of the calculation: the same request as the view makes,
+	// JSON.stringify, the bridge call and JSON.parse, as engine.js does.
+	calls := eval[[]float64](p, fmt.Sprintf(`(async () => {
+		const form = document.querySelector('section.view[data-view="compare"] form');
+		const times = [];
+		for (let i = 0; i < %d; i++) {
+			await new Promise((r) => setTimeout(r, 0));
+			const request = { ...Object.fromEntries([...form.querySelectorAll('input[name]')].map((e) => [e.name, e.value.trim()])), qb: String(250 + (i %% 100)), sweep: {} };
+			const t0 = performance.now();
+			JSON.parse(clearkit.compare(JSON.stringify(request)));
+			times.push(performance.now() - t0);
+		}
+		return times.slice(60);
+	})()`, benchInputs+60))
+	fmt.Printf("    of which the calculation call       median %6.2f ms  p95 %6.2f ms  (stringify, bridge, parse)\n", quantile(calls, 0.5), quantile(calls, 0.95))
+	// The share of the chart: pressing the chart's axis button redraws it
+	// from the last result without a calculation.
+	draws := eval[[]float64](p, fmt.Sprintf(`(async () => {
+		const view = document.querySelector('section.view[data-view="compare"]');
+		const buttons = [...view.querySelectorAll('[data-axis]')];
+		const chart = view.querySelector('svg.chart');
+		const times = [];
+		for (let i = 0; i < %d; i++) {
+			await new Promise((r) => requestAnimationFrame(() => setTimeout(r, 0)));
+			const t0 = performance.now();
+			buttons[i %% buttons.length].click();
+			chart.getBoundingClientRect();
+			times.push(performance.now() - t0);
+		}
+		return times.slice(60);
+	})()`, benchInputs+60))
+	fmt.Printf("    and the chart redrawn alone         median %6.2f ms  p95 %6.2f ms  (axis button, no calculation)\n", quantile(draws, 0.5), quantile(draws, 0.95))
 }
 
 // quantile returns the q quantile of xs (nearest rank).

@@ -51,7 +51,7 @@ func Check(request []byte) []byte {
 		return failure(err)
 	}
 	r, err := core.Check(m, o)
-	return respond(CheckResponse{OK: true, Input: m, CheckResult: r}, err)
+	return respond(&CheckResponse{OK: true, Input: m, CheckResult: r}, err)
 }
 
 func (req CheckRequest) read() (m core.Measurement, o core.CheckOptions, err error) {

@@ -63,7 +63,7 @@ func Compare(request []byte) []byte {
 		}
 		resp.Sweeps = &s
 	}
-	return respond(resp, nil)
+	return respond(&resp, nil)
 }
 
 // operating reads the fields of an operating point.

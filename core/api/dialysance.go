@@ -47,7 +47,7 @@ func Dialysance(request []byte) []byte {
 	}
 	d, err := core.ConductivityDialysance(in.Levels, in.DialysanceSetting)
 	in.Resolution = d.Resolution
-	return respond(DialysanceResponse{OK: true, Input: in, DialysanceResult: d}, err)
+	return respond(&DialysanceResponse{OK: true, Input: in, DialysanceResult: d}, err)
 }
 
 func (req DialysanceRequest) read() (in DialysanceInput, err error) {

@@ -37,7 +37,7 @@ func FlowCheck(request []byte) []byte {
 		return failure(err)
 	}
 	r, err := core.TimedFlow(c)
-	return respond(FlowCheckResponse{OK: true, Input: c, FlowCheck: r}, err)
+	return respond(&FlowCheckResponse{OK: true, Input: c, FlowCheck: r}, err)
 }
 
 func (req FlowCheckRequest) read() (c core.Collection, err error) {

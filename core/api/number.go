@@ -1,6 +1,7 @@
 package api
 
 import (
+	"bytes"
 	"math"
 	"strconv"
 	"strings"
@@ -11,11 +12,22 @@ import (
 // Number is a numeric request field. It keeps the raw JSON value and is
 // read, with its field name, by Required or Optional, so that every
 // decoding problem is reported against the field that caused it.
-type Number struct{ raw []byte }
+type Number struct {
+	raw []byte
+	// short holds raw when it fits, which spares an allocation per field
+	// (a request has ten or so, and the page sends one per input event).
+	// A copy of a Number shares the original's bytes, which only a second
+	// UnmarshalJSON of the original would change.
+	short [24]byte
+}
 
 // UnmarshalJSON keeps the raw value; it never fails.
 func (n *Number) UnmarshalJSON(b []byte) error {
-	n.raw = append(n.raw[:0], b...)
+	if len(b) <= len(n.short) {
+		n.raw = append(n.short[:0], b...)
+	} else {
+		n.raw = append([]byte(nil), b...)
+	}
 	return nil
 }
 
@@ -63,33 +75,42 @@ func isDecimal(s string) bool {
 	return i == len(s)
 }
 
-// value returns the number and whether it was given at all.
+// value returns the number and whether it was given at all. It works on
+// the raw bytes, so that an absent or empty field costs no allocation (the
+// page sends every field of its form, most of them empty).
 func (n Number) value(field string) (float64, bool, error) {
-	raw := strings.TrimSpace(string(n.raw))
-	if raw == "" || raw == "null" {
+	raw := bytes.TrimSpace(n.raw)
+	if len(raw) == 0 || string(raw) == "null" {
 		return 0, false, nil
 	}
+	var text string
 	switch c := raw[0]; {
 	case c == '"':
-		var s string
-		if err := json.Unmarshal([]byte(raw), &s); err != nil {
-			return 0, false, fieldErr(field, "must be a number")
+		inner := raw[1 : len(raw)-1] // the decoder only hands over whole strings
+		if bytes.IndexByte(inner, '\\') >= 0 {
+			var s string
+			if err := json.Unmarshal(raw, &s); err != nil {
+				return 0, false, fieldErr(field, "must be a number")
+			}
+			inner = []byte(s)
 		}
-		s = strings.TrimSpace(s)
-		if s == "" {
+		inner = bytes.TrimSpace(inner)
+		if len(inner) == 0 {
 			return 0, false, nil
 		}
-		if !isDecimal(s) {
-			return 0, false, fieldErr(field, "must be a number (got "+strconv.Quote(clip(s))+")")
+		text = string(inner)
+		if !isDecimal(text) {
+			return 0, false, fieldErr(field, "must be a number (got "+strconv.Quote(clip(text))+")")
 		}
-		raw = strings.Replace(s, ",", ".", 1)
+		text = strings.Replace(text, ",", ".", 1)
 	case c == '-' || (c >= '0' && c <= '9'):
+		text = string(raw)
 	default:
 		return 0, false, fieldErr(field, "must be a number (got "+kind(c)+")")
 	}
-	v, err := strconv.ParseFloat(raw, 64)
+	v, err := strconv.ParseFloat(text, 64)
 	if err != nil || math.IsInf(v, 0) || math.IsNaN(v) {
-		return 0, false, fieldErr(field, "must be a finite number (got "+strconv.Quote(clip(raw))+")")
+		return 0, false, fieldErr(field, "must be a finite number (got "+strconv.Quote(clip(text))+")")
 	}
 	return v, true, nil
 }

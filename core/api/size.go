@@ -82,7 +82,7 @@ func Size(request []byte) []byte {
 	if err != nil {
 		return failure(err)
 	}
-	return respond(SizeResponse{
+	return respond(&SizeResponse{
 		OK: true,
 		Input: SizeInput{
 			TargetClearance: spec.Target,

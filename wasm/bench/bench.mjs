@@ -5,17 +5,21 @@
 //
 //   node wasm/bench/bench.mjs site/clearkit.wasm "$(go env GOROOT)/lib/wasm/wasm_exec.js"
 //
-// Each figure is the median, over 31 batches of calls lasting about 10 ms
-// each, of the time per call (performance.now()), after a warm-up of
-// 300 ms. Calls run as the page makes them: one string in, one string out.
+// Each figure is the median time per call (performance.now()) over 41
+// batches of about 5 ms, after a warm-up (see measure). Calls run as the
+// page makes them: one string in, one string out.
 
 import { readFileSync, statSync } from 'node:fs';
 import { pathToFileURL } from 'node:url';
 import * as peer from './peer.mjs';
 
-const [wasmPath = 'site/clearkit.wasm', wasmExec] = process.argv.slice(2);
+// With --check it only checks that the peer gives the module's numbers
+// (./build.sh test does that, so that the peer follows the module).
+const args = process.argv.slice(2);
+const checkOnly = args[0] === '--check';
+const [wasmPath, wasmExec] = checkOnly ? args.slice(1) : args;
 if (!wasmExec) {
-  console.error('usage: node bench.mjs site/clearkit.wasm $(go env GOROOT)/lib/wasm/wasm_exec.js');
+  console.error('usage: node bench.mjs [--check] site/clearkit.wasm $(go env GOROOT)/lib/wasm/wasm_exec.js');
   process.exit(2);
 }
 await import(pathToFileURL(wasmExec).href); // defines globalThis.Go
@@ -29,9 +33,9 @@ if (!ck || typeof ck.compare !== 'function' || typeof ck.echo !== 'function') {
   process.exit(1);
 }
 
-// The view's requests: the form's texts as typed, with sweep: {} for the
-// chart series (compare-view.js).
-const form = { qb: '300', qd: '500', koa: '800', cbi: '', cdi: '' };
+// The view's requests: the form's texts as typed (the demo values and the
+// empty conditions of compare-view.js), with sweep: {} for the chart series.
+const form = { qb: '300', qd: '500', koa: '800', cbi: '', cdi: '', qf: '', sieving: '', hct: '', plasma_water: '', red_cell_water: '' };
 const compareRequest = JSON.stringify(form);
 const interactionRequest = JSON.stringify({ ...form, sweep: {} });
 
@@ -61,39 +65,52 @@ for (const req of [{ qb: -1, qd: 500, koa: 800 }, { qb: 300, qd: 500 }]) {
   if (p.ok || m.ok || p.error.field !== m.error.field) throw new Error(`peer and module disagree on ${JSON.stringify(req)}`);
 }
 
+if (checkOnly) {
+  console.log('bench: the peer (wasm/bench/peer.mjs) gives the module\'s numbers');
+  process.exit(0);
+}
+
 let sink = 0; // keeps results alive so that no call is optimised away
 
-// perCall returns the median time of one call of fn, in microseconds.
-function perCall(fn) {
-  const warm = performance.now() + 300;
-  let n = 0;
-  while (performance.now() < warm) {
-    sink += fn();
-    n++;
+// measure times every benchmark of cases ({name: fn}) and returns the
+// median time of one call of each, in microseconds. Each is warmed up for
+// 300 ms, which also sizes its batch to about 5 ms; then 41 rounds run one
+// batch of every benchmark in turn, so that a change in the machine's load
+// falls on all of them alike and the ratios hold.
+function measure(cases) {
+  const batch = {};
+  for (const [name, fn] of Object.entries(cases)) {
+    const end = performance.now() + 300;
+    let n = 0;
+    while (performance.now() < end) {
+      sink += fn();
+      n++;
+    }
+    batch[name] = Math.max(1, Math.round(n / 60));
   }
-  const batch = Math.max(1, Math.round(n / 30)); // about 10 ms
-  const times = [];
-  for (let b = 0; b < 31; b++) {
-    const t0 = performance.now();
-    for (let i = 0; i < batch; i++) sink += fn();
-    times.push(((performance.now() - t0) / batch) * 1000);
+  const times = Object.fromEntries(Object.keys(cases).map((name) => [name, []]));
+  for (let round = 0; round < 41; round++) {
+    for (const [name, fn] of Object.entries(cases)) {
+      const t0 = performance.now();
+      for (let i = 0; i < batch[name]; i++) sink += fn();
+      times[name].push(((performance.now() - t0) / batch[name]) * 1000);
+    }
   }
-  times.sort((x, y) => x - y);
-  return times[15];
+  return Object.fromEntries(Object.entries(times).map(([name, ts]) => [name, ts.sort((x, y) => x - y)[20]]));
 }
 
 const size = (x) => (typeof x === 'string' ? x.length : 1);
-const t = {
-  peerCompare: perCall(() => size(peer.compare(form).countercurrent)),
-  peerInteraction: perCall(() => size(peer.compare({ ...form, sweep: {} }).sweeps.qb.x)),
-  empty: perCall(() => size(ck.echo(compareRequest))),
-  compare: perCall(() => size(ck.compare(compareRequest))),
-  compareEngine: perCall(() => size(JSON.parse(ck.compare(JSON.stringify(form))).countercurrent)),
-  interactionBridge: perCall(() => size(ck.compare(interactionRequest))),
-  interaction: perCall(() => size(JSON.parse(ck.compare(JSON.stringify({ ...form, sweep: {} }))).sweeps)),
-};
 const response = ck.compare(interactionRequest);
-t.parse = perCall(() => size(JSON.parse(response).sweeps));
+const t = measure({
+  peerCompare: () => size(peer.compare(form).countercurrent),
+  peerInteraction: () => size(peer.compare({ ...form, sweep: {} }).sweeps.qb.x),
+  empty: () => size(ck.echo(compareRequest)),
+  compare: () => size(ck.compare(compareRequest)),
+  compareEngine: () => size(JSON.parse(ck.compare(JSON.stringify(form))).countercurrent),
+  interactionBridge: () => size(ck.compare(interactionRequest)),
+  interaction: () => size(JSON.parse(ck.compare(JSON.stringify({ ...form, sweep: {} }))).sweeps),
+  parse: () => size(JSON.parse(response).sweeps),
+});
 
 const us = (x) => `${x.toFixed(x < 10 ? 2 : 1)} us`.padStart(10);
 const ratio = (x) => `${x.toFixed(2)}x`;

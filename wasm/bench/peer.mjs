@@ -78,14 +78,17 @@ function series(op, axis, lo, hi, n) {
   const s = { x: [], countercurrent: [], cocurrent: [], countercurrent_ceiling: [], cocurrent_ceiling: [] };
   const f = (op.cbi - op.cdi) / op.cbi;
   const step = (hi - lo) / (n - 1);
+  let { qb, qd, koa } = op;
   for (let i = 0; i < n; i++) {
     const x = i === n - 1 ? hi : lo + i * step;
-    const p = { ...op, [axis]: x };
+    if (axis === 'qb') qb = x;
+    else if (axis === 'qd') qd = x;
+    else koa = x;
     s.x.push(x);
-    s.countercurrent.push(dialysance(true, p.qb, p.qd, p.koa) * f);
-    s.cocurrent.push(dialysance(false, p.qb, p.qd, p.koa) * f);
-    s.countercurrent_ceiling.push(dialysance(true, p.qb, p.qd, Infinity) * f);
-    s.cocurrent_ceiling.push(dialysance(false, p.qb, p.qd, Infinity) * f);
+    s.countercurrent.push(dialysance(true, qb, qd, koa) * f);
+    s.cocurrent.push(dialysance(false, qb, qd, koa) * f);
+    s.countercurrent_ceiling.push(dialysance(true, qb, qd, Infinity) * f);
+    s.cocurrent_ceiling.push(dialysance(false, qb, qd, Infinity) * f);
   }
   return s;
 }
@@ -107,6 +110,16 @@ export function compare(request) {
     check('koa', op.koa, 0, MAX_KOA);
     check('cbi', op.cbi, MIN_CONC, MAX_CONC);
     check('cdi', op.cdi, 0, MAX_CONC);
+    // The peer covers what the view sends by default: an aqueous solution
+    // (no haematocrit) and no ultrafiltration, where the model is the
+    // closed form above.
+    op.qf = number(request, 'qf', 0);
+    op.sieving = number(request, 'sieving', 1);
+    check('sieving', op.sieving, 0, 1);
+    if (op.qf !== 0) throw fieldError('qf', 'the peer covers QF = 0 only');
+    for (const field of ['hct', 'plasma_water', 'red_cell_water']) {
+      if (number(request, field, null) !== null) throw fieldError(field, 'the peer covers an aqueous solution only');
+    }
     const cc = arrangement(true, op);
     const co = arrangement(false, op);
     const cmin = Math.min(op.qb, op.qd);
@@ -119,6 +132,7 @@ export function compare(request) {
       countercurrent_gain_percent: co.dialysance > 0 ? (100 * (cc.dialysance - co.dialysance)) / co.dialysance : 0,
       ntu: op.koa / cmin,
       flow_ratio: cmin / Math.max(op.qb, op.qd),
+      qbw: op.qb, // the water flow of the blood: all of it for a solution
     };
     if (request.sweep) {
       const n = 101;
