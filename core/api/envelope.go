@@ -41,7 +41,10 @@ func decode(request []byte, v any) error {
 	if len(request) > MaxRequestBytes {
 		return fieldErr("", "request is too large (limit 64 KiB)")
 	}
-	trimmed := bytes.TrimSpace(request)
+	// Only JSON's own white space (RFC 8259: space, tab, line feed,
+	// carriage return) may surround the object; bytes.TrimSpace would also
+	// pass \v and \f, which the decoder tolerates after a value.
+	trimmed := bytes.Trim(request, " \t\n\r")
 	if len(trimmed) == 0 {
 		return fieldErr("", "request is empty: send a JSON object")
 	}
@@ -53,6 +56,9 @@ func decode(request []byte, v any) error {
 	}
 	if !isObject { // null decodes into a struct without error
 		return notObject
+	}
+	if trimmed[len(trimmed)-1] != '}' {
+		return dataAfter
 	}
 	return checkKeys(request, v)
 }
