@@ -27,13 +27,35 @@ const (
 // Measurement is what a clearance test in front of a machine records:
 // the set flows and the four sample concentrations.
 type Measurement struct {
-	QB  float64 `json:"qb"`  // blood inlet flow, mL/min, > 0
-	QD  float64 `json:"qd"`  // dialysate inlet flow, mL/min, > 0
-	QF  float64 `json:"qf"`  // ultrafiltration rate, mL/min, 0 <= QF < QB
-	CBi float64 `json:"cbi"` // blood inlet concentration, > 0
-	CBo float64 `json:"cbo"` // blood outlet concentration
-	CDi float64 `json:"cdi"` // dialysate inlet concentration (0 for fresh)
-	CDo float64 `json:"cdo"` // dialysate outlet concentration
+	QB float64 `json:"qb"` // blood inlet flow, mL/min, > 0
+	QD float64 `json:"qd"` // dialysate inlet flow, mL/min, > 0
+	QF float64 `json:"qf"` // ultrafiltration rate, mL/min, 0 <= QF < QBW
+	// Sieving is the sieving coefficient of the solute, 0 to 1 (1 for
+	// urea, the API's default); it matters only with QF > 0.
+	Sieving float64 `json:"sieving"`
+	// Blood, when not nil, says the test ran on whole blood: the blood
+	// side then counts the blood-water flow QBW (BloodWaterFlow) in place
+	// of QB. Nil is an aqueous test solution.
+	Blood *WholeBlood `json:"blood,omitempty"`
+	CBi   float64     `json:"cbi"` // blood inlet concentration, > 0
+	CBo   float64     `json:"cbo"` // blood outlet concentration
+	CDi   float64     `json:"cdi"` // dialysate inlet concentration (0 for fresh)
+	CDo   float64     `json:"cdo"` // dialysate outlet concentration
+}
+
+// BloodSideFlow returns the blood-side flow the check counts, mL/min: QB
+// for an aqueous solution, the blood-water flow for whole blood.
+func (m Measurement) BloodSideFlow() float64 {
+	if m.Blood == nil {
+		return m.QB
+	}
+	return m.QB * m.Blood.WaterFraction()
+}
+
+// model returns the operating point of the flow model at the measured
+// flows and inlet concentrations (KoA 0), as the model sees it.
+func (m Measurement) model() Operating {
+	return Operating{QB: m.BloodSideFlow(), QD: m.QD, CBi: m.CBi, CDi: m.CDi, Filtration: Filtration{QF: m.QF, Sieving: m.Sieving}}
 }
 
 // Validate reports the first measurement that cannot be right, by its API
@@ -49,7 +71,23 @@ func (m Measurement) Validate() error {
 	if err := checkFlow("qd", m.QD); err != nil {
 		return err
 	}
-	if err := checkUltrafiltration(m.QF, m.QB); err != nil {
+	if err := checkUltrafiltration(m.QF, 0); err != nil {
+		return err
+	}
+	if s := m.Sieving; math.IsNaN(s) || s < 0 || s > 1 {
+		return fieldErrorf("sieving", "must be from 0 to 1 (got %g); 1 for urea", s)
+	}
+	flow := "blood flow QB"
+	if m.Blood != nil {
+		if err := m.Blood.Validate(); err != nil {
+			return err
+		}
+		flow = "blood-water flow QBW"
+		if qbw := m.BloodSideFlow(); qbw < MinFlow {
+			return fieldErrorf("qb", "gives a blood-water flow of %g mL/min, too small to compute with (minimum %g)", qbw, MinFlow)
+		}
+	}
+	if err := (Filtration{QF: m.QF, Sieving: m.Sieving}).validate(m.BloodSideFlow(), flow); err != nil {
 		return err
 	}
 	if err := checkConcentration("cbi", m.CBi, true); err != nil {
@@ -234,10 +272,17 @@ type CheckResult struct {
 	MassBalanceOK        bool    `json:"mass_balance_ok"`
 	// ExtractionRatio is (CBi - CBo)/CBi.
 	ExtractionRatio float64 `json:"extraction_ratio"`
+	// QBW is the blood-side flow counted, mL/min: QB for an aqueous test
+	// solution, the blood-water flow for whole blood. QB below stands for
+	// it.
+	QBW float64 `json:"qbw"`
 	// DiffusiveClearance is the clearance with the ultrafiltration's share
-	// taken out, KD = QB (K - QF)/(QB - QF) = QB (CBi - CBo)/CBi, and
-	// DiffusiveDialysance is KD CBi/(CBi - CDi), from which the in-situ KoA
-	// is found.
+	// taken out by the common approximation K = KD + QF (1 - KD/QB) (from
+	// memory), KD = QB (K - QF)/(QB - QF) = QB (CBi - CBo)/CBi, and
+	// DiffusiveDialysance is KD CBi/(CBi - CDi): what the extraction ratio
+	// says without ultrafiltration. With QF = 0 the in-situ KoA inverts the
+	// latter; with QF > 0 it inverts the ultrafiltration model instead
+	// (Transfer), which these two only approximate.
 	DiffusiveClearance  float64 `json:"diffusive_clearance"`
 	DiffusiveDialysance float64 `json:"diffusive_dialysance"`
 	// KoACountercurrent and KoACocurrent repeat the in-situ KoA of each
@@ -273,16 +318,15 @@ type CheckResult struct {
 // Mass balance error = (blood-side removal - dialysate-side gain) /
 // blood-side removal (Kuhlmann et al., NDT 2001;16:1053-1058).
 //
-// The in-situ KoA inverts the flow model without ultrafiltration (Michaels
-// 1966) at the measured QB and QD, after the ultrafiltration's share is
-// taken out by the common approximation for a sieving coefficient of 1,
-// K = KD + QF (1 - KD/QB) (from memory), that is KD = QB (K - QF)/(QB - QF),
-// which with the blood-side K above is exactly KD = QB (CBi - CBo)/CBi:
-// the diffusive clearance is the one the measured extraction ratio gives
-// without ultrafiltration. The dialysate inlet is taken out by
-// D = KD CBi/(CBi - CDi). With QF = 0 and CDi = 0 the inversion is exact
-// within the model. The ceilings are the same relations at KoA without
-// bound.
+// The in-situ KoA is the KoA at which the flow model gives the measured
+// clearance at the measured flows and inlet concentrations: without
+// ultrafiltration the effectiveness-NTU relations (Michaels 1966) inverted
+// in closed form on D = K CBi/(CBi - CDi); with it the ultrafiltration
+// model (Transfer: the diffusion-convection flux along the membrane, with
+// the sieving coefficient), inverted by root finding (KoAForClearance).
+// The expected clearance of a rated filter and the ceilings come from the
+// same model. With whole blood QB is the blood-water flow throughout, on
+// both the measured and the model side.
 //
 // Special cases are:
 //
@@ -309,27 +353,30 @@ func Check(m Measurement, o CheckOptions) (CheckResult, error) {
 		ClearanceTolerance:   o.ClearanceTolerance,
 		ExtractionRatio:      (m.CBi - m.CBo) / m.CBi,
 	}
-	s := solve(m)
+	s := solve(m, noHint)
+	r.QBW = m.BloodSideFlow()
 	r.Clearance, r.BloodRemoval, r.DialysateGain = s.k, s.removal, s.gain
 	r.DialysateClearance = s.gain / m.CBi
 	r.MassBalanceError = s.balance
 	r.MassBalanceOK = math.Abs(s.balance) <= o.MassBalanceTolerance
 	r.DiffusiveClearance, r.DiffusiveDialysance = s.kd, s.dd
-	f := (m.CBi - m.CDi) / m.CBi
+	op := m.model()
 	for i, a := range Arrangements {
 		fit := &r.Countercurrent
 		if a == Cocurrent {
 			fit = &r.Cocurrent
 		}
-		fit.Ceiling = withUltrafiltration(Ceiling(a, m.QB, m.QD)*f, m.QF, m.QB)
+		_, fit.Ceiling = clearanceAt(a, op)
 		if s.reach[i] {
 			fit.KoA = ptr(s.koa[i])
 			if s.koa[i] > 0 {
-				fit.Sensitivity = ptr(s.k / (s.k - m.QF) * dialysanceSensitivity(a, m.QB, m.QD, s.dd, s.koa[i]))
+				fit.Sensitivity = ptr(koaSensitivity(a, op, s.k, s.dd, s.koa[i]))
 			}
 		}
 		if o.RatedKoA > 0 {
-			expected := withUltrafiltration(Dialysance(a, m.QB, m.QD, o.RatedKoA)*f, m.QF, m.QB)
+			rated := op
+			rated.KoA = o.RatedKoA
+			expected, _ := clearanceAt(a, rated)
 			fit.Expected = ptr(expected)
 			fit.ClearanceDeviation = ptr((s.k - expected) / expected)
 			if fit.KoA != nil {
@@ -359,13 +406,35 @@ type solution struct {
 	reach                     [2]bool
 }
 
-// solve computes a check's numbers. It needs only positive flows; a
+// drawHint speeds up the in-situ KoA of the draws of an uncertainty
+// analysis with ultrafiltration. Each draw's KoA starts at the closed-form
+// KoA of its diffusive dialysance (the approximation of
+// DiffusiveDialysance, inSituKoA) times ratio, the model's KoA over that
+// closed form at the central values; the two move alike with the
+// readings, so the start is off by the product of the readings' spread and
+// the ultrafiltration's effect, about 1e-4, and the secant ends in two or
+// three evaluations. Draws are solved to drawTolerance; a zero ratio
+// (central KoA unknown) means no hint.
+type drawHint struct{ ratio [2]float64 }
+
+// noHint asks solve to find the in-situ KoA without a starting point, to
+// the model's own accuracy.
+var noHint drawHint
+
+// drawTolerance is the relative step at which a draw's KoA stops: far
+// below any interval the Monte Carlo can resolve (its percentiles move by
+// about 1e-3 relative between seeds).
+const drawTolerance = 1e-10
+
+// solve computes a check's numbers. With ultrafiltration the in-situ KoA
+// of each arrangement is found by root finding, started as hint says for
+// the draws of an uncertainty analysis. It needs only positive flows; a
 // perturbed measurement may break the other rules, and then the numbers
 // say so: +Inf for everything when the blood inlet reads 0 or less, a
 // balance of +Inf when the blood side shows no removal, a KoA of +Inf when
 // no filter reaches the clearance or the dialysate inlet is at or above
 // the blood inlet. It never returns NaN.
-func solve(m Measurement) solution {
+func solve(m Measurement, hint drawHint) solution {
 	var s solution
 	if !(m.CBi > 0) {
 		// A draw whose blood inlet reads 0 or less: nothing is defined.
@@ -374,7 +443,8 @@ func solve(m Measurement) solution {
 	}
 	// Each side as flow times a difference of inputs, then the
 	// ultrafiltrate's share: the differences are exact for close samples.
-	s.removal = m.QB*(m.CBi-m.CBo) + m.QF*m.CBo
+	qb := m.BloodSideFlow()
+	s.removal = qb*(m.CBi-m.CBo) + m.QF*m.CBo
 	s.gain = m.QD*(m.CDo-m.CDi) + m.QF*m.CDo
 	s.k = s.removal / m.CBi
 	s.balance = math.Inf(1)
@@ -383,7 +453,7 @@ func solve(m Measurement) solution {
 	}
 	// KD = QB (K - QF)/(QB - QF) is QB (CBi - CBo)/CBi exactly (see Check),
 	// and this form has no difference of computed numbers.
-	s.kd = m.QB * (m.CBi - m.CBo) / m.CBi
+	s.kd = qb * (m.CBi - m.CBo) / m.CBi
 	switch {
 	case s.kd <= 0:
 		// No diffusion shows: the model's KoA is 0 in both arrangements.
@@ -397,7 +467,17 @@ func solve(m Measurement) solution {
 	default:
 		s.dd = s.kd * m.CBi / (m.CBi - m.CDi)
 		for i, a := range Arrangements {
-			s.koa[i], s.reach[i] = inSituKoA(a, m.QB, m.QD, s.dd)
+			if m.QF == 0 {
+				s.koa[i], s.reach[i] = inSituKoA(a, qb, m.QD, s.dd)
+			} else {
+				st := start{}
+				if r := hint.ratio[i]; r > 0 {
+					if g, ok := inSituKoA(a, qb, m.QD, s.dd); ok && g > 0 {
+						st = start{koa: g * r, offset: 1e-4, tol: drawTolerance}
+					}
+				}
+				s.koa[i], s.reach[i] = filteredKoA(a, m, s.k, st)
+			}
 			if !s.reach[i] {
 				s.koa[i] = math.Inf(1)
 			}
@@ -406,10 +486,42 @@ func solve(m Measurement) solution {
 	return s
 }
 
-// withUltrafiltration adds the ultrafiltration's share to a diffusive
-// clearance kd: K = KD + QF (1 - KD/QB), the approximation Check inverts.
-func withUltrafiltration(kd, qf, qb float64) float64 {
-	return kd + qf*(1-kd/qb)
+// filteredKoA is inSituKoA with ultrafiltration: the KoA at which
+// arrangement a gives the clearance k of m by the ultrafiltration model,
+// 0 when k is at or below what the ultrafiltration alone clears, false
+// when no filter (up to MaxKoA) reaches k. m's flows must be positive and
+// QF below the blood-side flow; a draw of an uncertainty analysis that
+// breaks that has no KoA.
+func filteredKoA(a Arrangement, m Measurement, k float64, st start) (float64, bool) {
+	op := m.model()
+	if !(op.QF < op.QB-MinFlow) || !(m.CBi > 0) || !(m.Sieving >= 0 && m.Sieving <= 1) {
+		return 0, false
+	}
+	inv := invertClearance(a, op, k, st)
+	switch inv.reach {
+	case found:
+		return inv.koa, true
+	case atFloor:
+		return 0, true
+	}
+	return 0, false
+}
+
+// koaSensitivity returns d ln KoA / d ln K at the measured flows for the
+// in-situ KoA koa > 0 of clearance k: without ultrafiltration from the
+// closed form (dialysanceSensitivity, on the dialysance d), with it from a
+// central difference of the model's clearance in KoA, of relative step
+// 1e-6 (truncation and rounding both near 1e-11 relative).
+func koaSensitivity(a Arrangement, op Operating, k, d, koa float64) float64 {
+	if op.QF == 0 {
+		return dialysanceSensitivity(a, op.QB, op.QD, d, koa)
+	}
+	h := 1e-6 * koa
+	op.KoA = koa + h
+	up, _ := clearanceAt(a, op)
+	op.KoA = koa - h
+	down, _ := clearanceAt(a, op)
+	return k / koa / ((up - down) / (2 * h))
 }
 
 // inSituKoA returns the KoA at which arrangement a has dialysance d at

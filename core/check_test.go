@@ -1,6 +1,7 @@
 package core_test
 
 import (
+	"fmt"
 	"math"
 	"slices"
 	"strings"
@@ -253,29 +254,63 @@ func TestCheckAnyUnit(t *testing.T) {
 	}
 }
 
-// With ultrafiltration, samples built by the approximation the check
-// inverts (K = KD + QF (1 - KD/QB), REFERENCES, from memory; the blood
-// outlet at the extraction diffusion gives, CBo = CBi (1 - KD/QB)) read
-// back as the KoA that made KD. This tests the bookkeeping of QF, not the
-// approximation.
+// With ultrafiltration, samples built by the ultrafiltration model
+// (core.Evaluate with QF, its outlets) read back as the KoA that made them,
+// with a balanced mass, as rated, and the counter-current ceiling QB (QB <=
+// QD + QF, TransferCeiling). With QF = 0 this is the closed form; with
+// QF > 0 the root finding of KoAForClearance, to 1e-10 (KoA is
+// ill-conditioned by a factor of a few here: koaSensitivity). Urea (S = 1)
+// and a solute of S 0.7, fresh and used dialysate, aqueous and whole blood.
 func TestCheckUltrafiltrationRoundTrip(t *testing.T) {
 	for _, qf := range []float64{0, 5, 20, 60} {
-		op := core.Operating{QB: 300, QD: 500, KoA: 800, CBi: 100}
-		kd := core.Dialysance(core.Countercurrent, op.QB, op.QD, op.KoA)
-		k := kd + qf*(1-kd/op.QB)
-		m := core.Measurement{QB: op.QB, QD: op.QD, QF: qf, CBi: op.CBi, CBo: op.CBi * (1 - kd/op.QB)}
-		m.CDo = k * op.CBi / (op.QD + qf) // a balanced dialysate side
-		r := check(t, m, core.CheckOptions{RatedKoA: 800})
-		if !close(r.Clearance, k) || !tolerance(*r.KoACountercurrent, 800, 1e-13) {
-			t.Errorf("QF %g: clearance %.17g, KoA %.17g; want %.17g and 800", qf, r.Clearance, *r.KoACountercurrent, k)
+		for _, s := range []float64{1, 0.7} {
+			for _, cdi := range []float64{0, 10} {
+				for _, blood := range []*core.WholeBlood{nil, {Hct: 32, PlasmaWater: 0.93, RedCellWater: 0.72}} {
+					op := core.Operating{QB: 300, QD: 500, KoA: 800, CBi: 100, CDi: cdi, Blood: blood, Filtration: core.Filtration{QF: qf, Sieving: s}}
+					p, err := core.Evaluate(core.Countercurrent, op)
+					if err != nil {
+						t.Fatal(err)
+					}
+					m := core.Measurement{QB: op.QB, QD: op.QD, QF: qf, Sieving: s, Blood: blood, CBi: op.CBi, CBo: p.BloodOutlet, CDi: cdi, CDo: p.DialysateOutlet}
+					r := check(t, m, core.CheckOptions{RatedKoA: 800})
+					call := fmt.Sprintf("QF %g, S %g, CDi %g, blood %v", qf, s, cdi, blood)
+					if !tolerance(r.Clearance, p.Clearance, 1e-12) || r.KoACountercurrent == nil || !tolerance(*r.KoACountercurrent, 800, 1e-10) {
+						t.Errorf("%s: clearance %.17g, KoA %v; want %.17g and 800", call, r.Clearance, r.KoACountercurrent, p.Clearance)
+						continue
+					}
+					if math.Abs(r.MassBalanceError) > 1e-12 || r.Verdict != "as_rated" || math.Abs(*r.Countercurrent.ClearanceDeviation) > 1e-12 {
+						t.Errorf("%s: error %g, verdict %q, deviation %g; want 0, as_rated, 0", call, r.MassBalanceError, r.Verdict, *r.Countercurrent.ClearanceDeviation)
+					}
+					if !close(r.QBW, op.BloodSideFlow()) || !close(r.Countercurrent.Ceiling, p.ClearanceCeiling) {
+						t.Errorf("%s: qbw %.17g, ceiling %.17g; want %.17g and %.17g (Evaluate)", call, r.QBW, r.Countercurrent.Ceiling, op.BloodSideFlow(), p.ClearanceCeiling)
+					}
+				}
+			}
 		}
-		if math.Abs(r.MassBalanceError) > 1e-14 || r.Verdict != "as_rated" || math.Abs(*r.Countercurrent.ClearanceDeviation) > 1e-14 {
-			t.Errorf("QF %g: error %g, verdict %q, deviation %g; want 0, as_rated, 0", qf, r.MassBalanceError, r.Verdict, *r.Countercurrent.ClearanceDeviation)
+	}
+}
+
+// The common approximation K = KD + QF (1 - KD/QB) (from memory), which
+// the check inverted before the ultrafiltration model, credits less of the
+// clearance to the ultrafiltration than the model does, so it reads the
+// model's samples as a larger filter: by 1.0 % at QF 5, 4.2 % at QF 20 and
+// 14 % at QF 60 mL/min for this routine point (measured here; urea,
+// counter-current, QB 300, QD 500, KoA 800 mL/min). The test keeps the
+// figures in view: it asserts the approximation's KoA lies 0.5 to 20 %
+// above the model's.
+func TestCheckApproximationDifference(t *testing.T) {
+	for _, qf := range []float64{5, 20, 60} {
+		op := core.Operating{QB: 300, QD: 500, KoA: 800, CBi: 1, Filtration: core.Filtration{QF: qf, Sieving: 1}}
+		p, _ := core.Evaluate(core.Countercurrent, op)
+		kd := op.QB * (p.Clearance - qf) / (op.QB - qf) // the approximation inverted
+		approx, err := core.KoAForClearance("k", core.Countercurrent, core.Operating{QB: 300, QD: 500, CBi: 1}, kd)
+		if err != nil {
+			t.Fatal(err)
 		}
-		// The ceiling counts QF the same way: KD = QB gives K = QB.
-		if !close(r.Countercurrent.Ceiling, op.QB) {
-			t.Errorf("QF %g: counter-current ceiling %.17g, want QB = %g", qf, r.Countercurrent.Ceiling, op.QB)
+		if high := (approx - 800) / 800; high < 0.005 || high > 0.2 {
+			t.Errorf("QF %g: the approximation gives KoA %.1f, %+.2f %% against the model's 800; want +0.5 to +20 %%", qf, approx, 100*high)
 		}
+		t.Logf("QF %g: approximation KoA %.1f mL/min (%+.2f %% against 800)", qf, approx, 100*(approx-800)/800)
 	}
 }
 
@@ -448,6 +483,14 @@ func TestCheckErrors(t *testing.T) {
 		{"dialysate outlet above blood inlet", func(m *core.Measurement) { m.CDo = 120 }, "cdo", "above the blood inlet"},
 		{"not a number", func(m *core.Measurement) { m.CDo = math.NaN() }, "cdo", "finite"},
 		{"infinite", func(m *core.Measurement) { m.QD = math.Inf(1) }, "qd", "finite"},
+		{"sieving above 1", func(m *core.Measurement) { m.Sieving = 1.1 }, "sieving", "from 0 to 1"},
+		{"sieving not a number", func(m *core.Measurement) { m.Sieving = math.NaN() }, "sieving", "from 0 to 1"},
+		{"haematocrit as a fraction", func(m *core.Measurement) { m.Blood = &core.WholeBlood{Hct: 0.3, PlasmaWater: 0.93, RedCellWater: 0.72} }, "hct", "percent"},
+		{"plasma water a percentage", func(m *core.Measurement) { m.Blood = &core.WholeBlood{Hct: 30, PlasmaWater: 93, RedCellWater: 0.72} }, "plasma_water", "at most 1"},
+		// QBW = 300 x 0.8628 = 258.84 at Hct 32 (bloodwater_test.go).
+		{"ultrafiltration above the blood-water flow", func(m *core.Measurement) {
+			m.QF, m.Blood = 260, &core.WholeBlood{Hct: 32, PlasmaWater: 0.93, RedCellWater: 0.72}
+		}, "qf", "blood-water flow QBW, 258.84"},
 	} {
 		m := good
 		c.edit(&m)

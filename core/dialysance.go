@@ -26,8 +26,9 @@ import (
 //     QF: De is the one to compare with a measured clearance.
 //   - diffusive dialysance, from J = Dd (Cbi - Cdi) + QF Cbi, the form
 //     D = QDi - QDo ΔCdo/ΔCdi of the ion mass balance: the ultrafiltrate
-//     carries blood-level ions, which cancel. It is the one the flow model
-//     without ultrafiltration, and so the in-situ KoA, speaks of.
+//     carries blood-level ions, which cancel. It is the dialysance D of
+//     the flow model (Transfer, D = -dW/dCDi), and so the one the in-situ
+//     KoA inverts.
 //
 // The two differ by exactly QF: Dd = De - QF. With QF = 0 they are the same.
 // ConductivityDialysance takes De as its headline "dialysance" and reports Dd beside it.
@@ -89,11 +90,12 @@ type DialysanceResult struct {
 	MinimumStep float64 `json:"minimum_step"`
 	Resolution  float64 `json:"resolution"`
 	// With QB: the in-situ counter-current KoA from the diffusive
-	// dialysance (null when no filter reaches it, or Dd < 0).
+	// dialysance, by the ultrafiltration model with sieving 1 (null when
+	// no filter reaches it, or Dd < 0).
 	KoACountercurrent *float64 `json:"koa_countercurrent"`
 	// With QB and a rated KoA: the effective dialysance the rated filter
-	// gives counter-current (Dd from the flow model, plus QF) and the
-	// measured one's deviation from it (a fraction).
+	// gives counter-current (Dd from the ultrafiltration model, plus QF)
+	// and the measured one's deviation from it (a fraction).
 	Expected  *float64 `json:"expected_dialysance"`
 	Deviation *float64 `json:"deviation"`
 	// Verdict on the rating: "as_rated", "below_rating", "above_rating",
@@ -159,13 +161,19 @@ func ConductivityDialysance(lv Levels, st DialysanceSetting) (DialysanceResult, 
 		MinimumStep:         minimum,
 		Resolution:          res,
 	}
+	// The model side: the ultrafiltration model with a sieving coefficient
+	// of 1 (small ions pass the membrane freely with the water: common
+	// practice, no source), whose dialysance D = -dW/dCDi is exactly the
+	// diffusive dialysance Dd the two levels measure.
+	f := Filtration{QF: st.QF, Sieving: 1}
 	if st.QB > 0 && d.DiffusiveDialysance >= 0 {
-		if koa, ok := inSituKoA(Countercurrent, st.QB, st.QD, d.DiffusiveDialysance); ok {
+		if koa, ok := koaForDialysance(Countercurrent, st.QB, st.QD, f, d.DiffusiveDialysance); ok {
 			d.KoACountercurrent = ptr(koa)
 		}
 	}
 	if st.QB > 0 && st.RatedKoA > 0 {
-		expected := Dialysance(Countercurrent, st.QB, st.QD, st.RatedKoA) + st.QF
+		_, dd := Transfer(Countercurrent, st.QB, st.QD, st.RatedKoA, f)
+		expected := dd + st.QF
 		d.Expected = ptr(expected)
 		d.Deviation = ptr((de - expected) / expected)
 	}
@@ -227,6 +235,9 @@ func (st DialysanceSetting) validate() error {
 			return err
 		}
 		if err := checkUltrafiltration(st.QF, st.QB); err != nil {
+			return err
+		}
+		if err := (Filtration{QF: st.QF, Sieving: 1}).Validate(st.QB); err != nil {
 			return err
 		}
 	}

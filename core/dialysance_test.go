@@ -62,16 +62,19 @@ func levelsFor(qd, qf, dd, cbi, cdi1, cdi2 float64) core.Levels {
 }
 
 // Built forward with the flow model: a KoA 800 filter at QB 300, QD 500
-// has dialysance 247.95 (core.Dialysance; compare_test.go's routine point),
-// and blood at 14 mS/cm with inlet levels 15.5 and 13.5. With QF = 0 both
+// has dialysance 247.95 without ultrafiltration (core.Dialysance;
+// compare_test.go's routine point) and, with QF, the D of the
+// ultrafiltration model (core.Transfer, sieving 1: 241.04 at QF 10), and
+// blood at 14 mS/cm with inlet levels 15.5 and 13.5. With QF = 0 both
 // forms give D back and the outlets are core.Evaluate's; with QF > 0 the
 // diffusive form gives D back and the effective one D + QF, and the
-// in-situ KoA is 800. Outlets carry an ulp of 15 (2e-15) over steps near
-// 1, which r amplifies to about 1e-14 of QD: 1e-12 relative is ample.
+// in-situ KoA is 800 (the model inverted by root finding, 1e-11).
+// Outlets carry an ulp of 15 (2e-15) over steps near 1, which r amplifies
+// to about 1e-14 of QD: 1e-12 relative is ample.
 func TestConductivityForward(t *testing.T) {
 	const qb, qd, koa, cbi = 300, 500, 800, 14.0
-	dd := core.Dialysance(core.Countercurrent, qb, qd, koa)
 	for _, qf := range []float64{0, 10, 30} {
+		_, dd := core.Transfer(core.Countercurrent, qb, qd, koa, core.Filtration{QF: qf, Sieving: 1})
 		lv := levelsFor(qd, qf, dd, cbi, 15.5, 13.5)
 		if qf == 0 {
 			// The same outlets as the flow model run forward.

@@ -6,13 +6,18 @@ import "math"
 // from the blood across the membrane, and how freely the solute follows it.
 type Filtration struct {
 	// QF is the ultrafiltration rate, mL/min: 0 <= QF, and the blood leaves
-	// the filter at QB - QF, which must stay at least MinFlow.
+	// the filter at QB - QF, which must stay at least 1e-6 QB.
 	QF float64 `json:"qf"`
 	// Sieving is the sieving coefficient S, from 0 (the solute stays in the
 	// blood) to 1 (it passes with the water, as urea does). Used only when
 	// QF > 0.
 	Sieving float64 `json:"sieving"`
 }
+
+// minOutletShare is the smallest share of the blood-side flow that must
+// leave the filter: QB - QF >= 1e-6 QB keeps the quadrature's panels
+// towards the blood outlet few (about 20 at most).
+const minOutletShare = 1e-6
 
 // DefaultSieving is the sieving coefficient of urea: about 1 (Jaffrin,
 // Convective mass transfer in hemodialysis, Artif Organs; abstract).
@@ -29,11 +34,9 @@ func (f Filtration) validate(qb float64, flow string) error {
 		return fieldErrorf("qf", "must be a finite number")
 	case v < 0:
 		return fieldErrorf("qf", "must not be negative (got %g mL/min); 0 means no ultrafiltration", v)
-	case v > 0 && v < MinFlow:
-		return fieldErrorf("qf", "is too small to compute with (minimum %g mL/min, or 0 for none; got %g)", MinFlow, v)
-	case qb-v < MinFlow:
-		e := fieldErrorf("qf", "must stay below the %s, %.6g mL/min, leaving at least %g mL/min at the filter outlet (got %g)", flow, qb, MinFlow, v)
-		limit := math.Max(0, qb-MinFlow)
+	case qb-v < minOutletShare*qb:
+		e := fieldErrorf("qf", "must stay below the %s, %.6g mL/min, leaving at least a millionth of it at the filter outlet (got %g)", flow, qb, v)
+		limit := qb * (1 - minOutletShare)
 		e.Limit = &limit
 		return e
 	}

@@ -21,6 +21,12 @@ import (
 // Artif Organs; abstract).
 var routineFiltration = core.Filtration{QF: 10, Sieving: 1}
 
+// ufOp is the operating point of flows qb, qd with ultrafiltration f and
+// fresh dialysate (CBi 1, CDi 0), KoA 0.
+func ufOp(qb, qd float64, f core.Filtration) core.Operating {
+	return core.Operating{QB: qb, QD: qd, CBi: 1, Filtration: f}
+}
+
 // evalUF is core.Evaluate at op with ultrafiltration f.
 func evalUF(a core.Arrangement, op core.Operating, f core.Filtration) (core.Performance, error) {
 	op.Filtration = f
@@ -402,9 +408,9 @@ func TestFiltrationValidate(t *testing.T) {
 		{core.Filtration{QF: -1, Sieving: 1}, "qf", "negative", 0, false},
 		{core.Filtration{QF: math.NaN(), Sieving: 1}, "qf", "finite", 0, false},
 		{core.Filtration{QF: math.Inf(1), Sieving: 1}, "qf", "finite", 0, false},
-		{core.Filtration{QF: 1e-7, Sieving: 1}, "qf", "too small", 0, false},
-		{core.Filtration{QF: 300, Sieving: 1}, "qf", "below the blood flow", 300 - core.MinFlow, true},
-		{core.Filtration{QF: 400, Sieving: 1}, "qf", "below the blood flow", 300 - core.MinFlow, true},
+		{core.Filtration{QF: 300, Sieving: 1}, "qf", "below the blood flow", 300 * (1 - 1e-6), true},
+		{core.Filtration{QF: 400, Sieving: 1}, "qf", "below the blood flow", 300 * (1 - 1e-6), true},
+		{core.Filtration{QF: 300 * (1 - 0.9e-6), Sieving: 1}, "qf", "a millionth", 300 * (1 - 1e-6), true},
 		{core.Filtration{QF: 10, Sieving: -0.1}, "sieving", "from 0 to 1", 0, false},
 		{core.Filtration{QF: 10, Sieving: 1.01}, "sieving", "from 0 to 1", 0, false},
 		{core.Filtration{QF: 10, Sieving: math.NaN()}, "sieving", "finite", 0, false},
@@ -423,7 +429,7 @@ func TestFiltrationValidate(t *testing.T) {
 			t.Errorf("Evaluate(%+v, %+v) error = %v, want field %q", routine, c.f, err, c.field)
 		}
 	}
-	for _, f := range []core.Filtration{{0, 1}, {0, 0}, {core.MinFlow, 1}, {300 - 2*core.MinFlow, 0}, {150, 0.5}} {
+	for _, f := range []core.Filtration{{0, 1}, {0, 0}, {core.MinFlow, 1}, {1e-9, 1}, {300 * (1 - 2e-6), 0}, {150, 0.5}} {
 		if err := f.Validate(300); err != nil {
 			t.Errorf("%+v.Validate(300) = %v, want nil", f, err)
 		}
@@ -458,7 +464,7 @@ func TestKoAForClearanceRoundTrip(t *testing.T) {
 							continue
 						}
 						checked++
-						back, err := core.KoAForClearance("clearance", a, qb, qd, f, k)
+						back, err := core.KoAForClearance("clearance", a, ufOp(qb, qd, f), k)
 						if err != nil {
 							t.Errorf("KoAForClearance(%v, %g, %g, %+v, %.17g) error: %v (from KoA %g)", a, qb, qd, f, k, err, koa)
 							continue
@@ -499,7 +505,7 @@ func TestKoAForClearanceClosedForm(t *testing.T) {
 					} else {
 						ntu = -math.Log1p(-eps*(1+cr)) / (1 + cr)
 					}
-					got, err := core.KoAForClearance("target", a, qb, qd, core.Filtration{Sieving: 1}, k)
+					got, err := core.KoAForClearance("target", a, ufOp(qb, qd, core.Filtration{Sieving: 1}), k)
 					if err != nil || !tolerance(got, ntu*cmin, 1e-12) {
 						t.Errorf("KoAForClearance(%v, %g, %g, QF 0, %g) = %.17g, %v, want %.17g", a, qb, qd, k, got, err, ntu*cmin)
 					}
@@ -534,7 +540,7 @@ func TestKoAForClearanceErrors(t *testing.T) {
 		{core.Countercurrent, 300, 500, math.NaN(), f, "finite", 0, false},
 		{core.Countercurrent, 300, 500, math.Inf(1), f, "finite", 0, false},
 	} {
-		_, err := core.KoAForClearance("target", c.a, c.qb, c.qd, c.f, c.k)
+		_, err := core.KoAForClearance("target", c.a, ufOp(c.qb, c.qd, c.f), c.k)
 		if fieldOf(err) != "target" || !strings.Contains(err.Error(), c.word) {
 			t.Errorf("KoAForClearance(%v, %g, %g, %+v, %g) error = %v, want field target and %q", c.a, c.qb, c.qd, c.f, c.k, err, c.word)
 			continue
@@ -561,7 +567,7 @@ func ExampleTransfer() {
 
 func ExampleKoAForClearance() {
 	// A filter measured at 251 mL/min with QB 300, QD 500, QF 10 mL/min.
-	koa, err := core.KoAForClearance("clearance", core.Countercurrent, 300, 500, core.Filtration{QF: 10, Sieving: 1}, 251)
+	koa, err := core.KoAForClearance("clearance", core.Countercurrent, ufOp(300, 500, core.Filtration{QF: 10, Sieving: 1}), 251)
 	fmt.Printf("KoA %.0f mL/min, %v\n", koa, err)
 	// Output:
 	// KoA 800 mL/min, <nil>
@@ -579,7 +585,7 @@ func BenchmarkTransfer(b *testing.B) {
 
 func BenchmarkKoAForClearance(b *testing.B) {
 	for b.Loop() {
-		if _, err := core.KoAForClearance("clearance", core.Countercurrent, 300, 500, routineFiltration, 251); err != nil {
+		if _, err := core.KoAForClearance("clearance", core.Countercurrent, ufOp(300, 500, routineFiltration), 251); err != nil {
 			b.Fatal(err)
 		}
 	}

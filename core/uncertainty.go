@@ -137,6 +137,17 @@ func propagate(m Measurement, o CheckOptions) Uncertainty {
 	for k, v := range values {
 		half[k] = o.halfWidth(*v, flows[k])
 	}
+	// With ultrafiltration the central in-situ KoA, against its closed-form
+	// counterpart, starts the root finding of every draw (drawHint).
+	central := solve(m, noHint)
+	var hint drawHint
+	if m.QF > 0 {
+		for i, a := range Arrangements {
+			if g, ok := inSituKoA(a, m.BloodSideFlow(), m.QD, central.dd); ok && g > 0 && central.reach[i] && central.koa[i] > 0 {
+				hint.ratio[i] = central.koa[i] / g
+			}
+		}
+	}
 	rng := rand.New(rand.NewPCG(o.Seed, rngStream))
 	var draws [4][]float64
 	for j := range draws {
@@ -148,7 +159,7 @@ func propagate(m Measurement, o CheckOptions) Uncertainty {
 		for k, v := range values {
 			*v += half[k] * (2*rng.Float64() - 1)
 		}
-		for j, y := range outputs(solve(d)) {
+		for j, y := range outputs(solve(d, hint)) {
 			draws[j][i] = y
 		}
 	}
@@ -170,7 +181,7 @@ func propagate(m Measurement, o CheckOptions) Uncertainty {
 
 	// Linearised: u^2 = sum over readings of (df/dx a/sqrt(3))^2, a the
 	// half-width, df/dx by a central difference of step sensitivityStep x.
-	centre := outputs(solve(m))
+	centre := outputs(central)
 	var variance [4]float64
 	var broken [4]bool
 	for k := range 7 {
@@ -183,7 +194,7 @@ func propagate(m Measurement, o CheckOptions) Uncertainty {
 		step := sensitivityStep * *vu[k]
 		*vu[k] += step
 		*vd[k] -= step
-		fu, fd := outputs(solve(up)), outputs(solve(down))
+		fu, fd := outputs(solve(up, hint)), outputs(solve(down, hint))
 		for j := range centre {
 			if math.IsInf(fu[j], 0) || math.IsInf(fd[j], 0) {
 				broken[j] = true

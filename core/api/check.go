@@ -8,9 +8,14 @@ import (
 
 // CheckRequest asks for the verdict of a clearance test.
 type CheckRequest struct {
-	QB  Number `json:"qb"`  // required, mL/min
-	QD  Number `json:"qd"`  // required, mL/min
-	QF  Number `json:"qf"`  // optional, default 0, mL/min
+	QB Number `json:"qb"` // required, mL/min
+	QD Number `json:"qd"` // required, mL/min
+	QF Number `json:"qf"` // optional, default 0, mL/min
+	// Sieving is the solute's sieving coefficient, 0 to 1; optional,
+	// default 1 (urea).
+	Sieving Number `json:"sieving"`
+	// The blood, when the test ran on whole blood (hct given).
+	WholeBloodFields
 	CBi Number `json:"cbi"` // required, any one concentration unit
 	CBo Number `json:"cbo"` // required
 	CDi Number `json:"cdi"` // optional, default 0
@@ -64,12 +69,18 @@ func (req CheckRequest) read() (m core.Measurement, o core.CheckOptions, err err
 		optional bool
 	}{
 		{req.QB, "qb", &m.QB, false}, {req.QD, "qd", &m.QD, false}, {req.QF, "qf", &m.QF, true},
+		{req.Sieving, "sieving", &m.Sieving, true}, {Number{}, "", nil, false},
 		{req.CBi, "cbi", &m.CBi, false}, {req.CBo, "cbo", &m.CBo, false},
 		{req.CDi, "cdi", &m.CDi, true}, {req.CDo, "cdo", &m.CDo, false},
 	} {
-		if f.optional {
+		switch {
+		case f.v == nil: // the blood fields, in their place in the form
+			m.Blood, err = req.WholeBloodFields.read()
+		case f.field == "sieving":
+			*f.v, err = f.n.Optional(f.field, core.DefaultSieving)
+		case f.optional:
 			*f.v, err = f.n.Optional(f.field, 0)
-		} else {
+		default:
 			*f.v, err = f.n.Required(f.field)
 		}
 		if err != nil {

@@ -77,7 +77,7 @@ func TestCheckAPIMatchesCore(t *testing.T) {
 	if err := json.Unmarshal(api.Check([]byte(req)), &got); err != nil {
 		t.Fatal(err)
 	}
-	m := core.Measurement{QB: 300, QD: 500, QF: 10, CBi: 100, CBo: 19, CDo: 46.3}
+	m := core.Measurement{QB: 300, QD: 500, QF: 10, Sieving: core.DefaultSieving, CBi: 100, CBo: 19, CDo: 46.3}
 	want, err := core.Check(m, core.CheckOptions{RatedKoA: 800, MassBalanceTolerance: 0.04, ClearanceTolerance: 0.075,
 		ConcentrationUncertainty: 0.02, ConcentrationFloor: 0.5, FlowUncertainty: 0.03, Seed: api.DefaultSeed})
 	if err != nil {

@@ -1,7 +1,9 @@
 package api_test
 
 import (
+	"encoding/json"
 	"math"
+	"reflect"
 	"slices"
 	"testing"
 
@@ -86,9 +88,8 @@ func TestCompareConditionsErrors(t *testing.T) {
 	for _, c := range []struct{ extra, field, word string }{
 		{`"qf":-1`, "qf", "negative"},
 		{`"qf":"abc"`, "qf", "must be a number"},
-		{`"qf":1e-7`, "qf", "too small"},
 		{`"qf":300`, "qf", "below the blood flow QB, 300"},
-		{`"qf":"299,9999995"`, "qf", "leaving at least 1e-06"},
+		{`"qf":"299,9999999"`, "qf", "leaving at least a millionth"},
 		{`"qf":260,"hct":32`, "qf", "blood-water flow QBW, 258.84"},
 		{`"qf":true`, "qf", "got true or false"},
 		{`"sieving":1.2`, "sieving", "from 0 to 1"},
@@ -113,11 +114,13 @@ func TestCompareConditionsErrors(t *testing.T) {
 	} {
 		fails(t, "{"+base+","+c.extra+"}", c.field, c.word)
 	}
-	// The limit of qf is the blood-side flow less the smallest flow.
+	// The limit of qf leaves a millionth of the blood-side flow.
 	env := checkResponse(t, api.Entries[0], []byte(`{`+base+`,"qf":400}`), api.Compare([]byte(`{`+base+`,"qf":400}`)))
-	if env.Error == nil || env.Error.Limit == nil || *env.Error.Limit != 300-core.MinFlow {
-		t.Errorf("Compare with qf 400: error %+v, want limit %g", env.Error, 300-core.MinFlow)
+	if env.Error == nil || env.Error.Limit == nil || *env.Error.Limit != 300*(1-1e-6) {
+		t.Errorf("Compare with qf 400: error %+v, want limit %g", env.Error, 300*(1-1e-6))
 	}
+	// Any positive QF below that is accepted, however small.
+	success(t, `{`+base+`,"qf":1e-9}`)
 }
 
 // The chart's QB range starts at max(25, 2 QF/w) by default; a range whose
@@ -148,6 +151,40 @@ func BenchmarkAPICompareFiltrationWithSweep(b *testing.B) {
 	for b.Loop() {
 		if resp := api.Compare(req); resp[6] != 't' {
 			b.Fatalf("Compare(%s) = %s", req, resp)
+		}
+	}
+}
+
+// check takes sieving (default 1) and the whole-blood fields: the input
+// echoes them, qbw is the blood-water flow, and the result is core.Check's.
+func TestCheckConditions(t *testing.T) {
+	for _, c := range []struct {
+		request string
+		m       core.Measurement
+	}{
+		{`{"qb":300,"qd":500,"qf":10,"cbi":100,"cbo":19,"cdo":46.3,"koa":800}`,
+			core.Measurement{QB: 300, QD: 500, QF: 10, Sieving: 1, CBi: 100, CBo: 19, CDo: 46.3}},
+		{`{"qb":300,"qd":500,"qf":10,"sieving":"0,9","hct":32,"cbi":100,"cbo":22,"cdo":40,"koa":800}`,
+			core.Measurement{QB: 300, QD: 500, QF: 10, Sieving: 0.9, Blood: &core.WholeBlood{Hct: 32, PlasmaWater: 0.93, RedCellWater: 0.72}, CBi: 100, CBo: 22, CDo: 40}},
+	} {
+		var got api.CheckResponse
+		if err := json.Unmarshal(api.Check([]byte(c.request)), &got); err != nil || !got.OK {
+			t.Fatalf("check(%s): %v %+v", c.request, err, got)
+		}
+		want, err := core.Check(c.m, core.CheckOptions{RatedKoA: 800, Seed: api.DefaultSeed})
+		if err != nil {
+			t.Fatal(err)
+		}
+		in := got.Input
+		if (in.Blood == nil) != (c.m.Blood == nil) || in.Blood != nil && *in.Blood != *c.m.Blood {
+			t.Errorf("check(%s).input.blood = %v, want %v", c.request, in.Blood, c.m.Blood)
+		}
+		in.Blood = c.m.Blood
+		if in != c.m || !reflect.DeepEqual(got.CheckResult, want) {
+			t.Errorf("check(%s) = %+v, want input %+v and core.Check's %+v", c.request, got, c.m, want)
+		}
+		if got.QBW != c.m.BloodSideFlow() {
+			t.Errorf("check(%s).qbw = %g, want %g", c.request, got.QBW, c.m.BloodSideFlow())
 		}
 	}
 }
