@@ -311,7 +311,7 @@ func MinimumQD(a Arrangement, qb, koa, target float64, r Range) (FlowSolve, erro
 	if err := checkFlow("qb", qb); err != nil {
 		return FlowSolve{}, err
 	}
-	return minimumFlow(a, "qd", qb, koa, target, r)
+	return minimumFlow(a, "qd", qb, koa, target, r, sizeModel{water: 1})
 }
 
 // MinimumQB is MinimumQD for the blood flow at dialysate flow qd (fields
@@ -320,12 +320,12 @@ func MinimumQB(a Arrangement, qd, koa, target float64, r Range) (FlowSolve, erro
 	if err := checkFlow("qd", qd); err != nil {
 		return FlowSolve{}, err
 	}
-	return minimumFlow(a, "qb", qd, koa, target, r)
+	return minimumFlow(a, "qb", qd, koa, target, r, sizeModel{water: 1})
 }
 
 // minimumFlow solves for the flow named vary ("qd" or "qb") with the other
-// flow held at other.
-func minimumFlow(a Arrangement, vary string, other, koa, target float64, r Range) (FlowSolve, error) {
+// flow held at other, by the sizing model m (size_conditions.go).
+func minimumFlow(a Arrangement, vary string, other, koa, target float64, r Range, m sizeModel) (FlowSolve, error) {
 	if err := checkFilterKoA("current_filter.koa", koa); err != nil {
 		return FlowSolve{}, err
 	}
@@ -336,18 +336,16 @@ func minimumFlow(a Arrangement, vary string, other, koa, target float64, r Range
 	if _, err := sweepRange(rangeField, &r, r, checkFlow); err != nil {
 		return FlowSolve{}, err
 	}
-	clearance := func(q float64) float64 {
-		if vary == "qd" {
-			return Dialysance(a, other, q, koa)
-		}
-		return Dialysance(a, q, other, koa)
+	clearance := m.flowClearance(a, vary, other, koa)
+	if vary == "qb" {
+		r = m.qbRange(r)
 	}
 	if k := clearance(r.Min); k >= target {
 		return FlowSolve{Flow: r.Min, Clearance: k, AtMinimum: true, Evaluations: 1}, nil
 	}
 	best := clearance(r.Max)
 	if best < target {
-		return FlowSolve{}, flowShortfall(a, vary, other, koa, target, r, best, clearance)
+		return FlowSolve{}, flowShortfall(a, vary, other, koa, target, r, best, clearance, m)
 	}
 	// The flow itself is the unknown (not its logarithm: math.Log and
 	// math.Exp differ between amd64 and wasm, see requiredKoA). Brent's
@@ -372,7 +370,7 @@ func minimumFlow(a Arrangement, vary string, other, koa, target float64, r Range
 // flowShortfall is the error of a flow solve whose range does not reach
 // the target: with the flow it would take when a higher flow (up to
 // MaxFlow) does, or the most the filter can give at any flow.
-func flowShortfall(a Arrangement, vary string, other, koa, target float64, r Range, best float64, clearance func(float64) float64) error {
+func flowShortfall(a Arrangement, vary string, other, koa, target float64, r Range, best float64, clearance func(float64) float64, m sizeModel) error {
 	name, otherName := strings.ToUpper(vary), "QB"
 	if vary == "qb" {
 		otherName = "QD"
@@ -380,7 +378,7 @@ func flowShortfall(a Arrangement, vary string, other, koa, target float64, r Ran
 	if r.Max < MaxFlow && clearance(MaxFlow) >= target {
 		msg := fmt.Sprintf("no %s up to %s mL/min reaches %s mL/min with this filter at %s %s (at most %s mL/min)",
 			name, num(r.Max), num(target), otherName, num(other), num(best))
-		if s, err := minimumFlow(a, vary, other, koa, target, Range{r.Max, MaxFlow}); err == nil {
+		if s, err := minimumFlow(a, vary, other, koa, target, Range{r.Max, MaxFlow}, m); err == nil {
 			msg += fmt.Sprintf("; %s %s mL/min would", name, num(s.Flow))
 		}
 		return &FieldError{Field: vary + "_range", Message: msg, Limit: &best}
@@ -471,10 +469,15 @@ func sizeSeries(a Arrangement, qb, qd, koaMax, k0 float64, n int) SizeSeries {
 // SizeSpec is a sizing question. Target, QB and QD are required; the rest
 // is optional (zero values mean "not given").
 type SizeSpec struct {
-	Target float64     // target clearance, mL/min (fresh dialysate: CDi = 0)
-	QB, QD float64     // mL/min
-	Flow   Arrangement // the arrangement the filter choice and flow solves use
-	K0     float64     // cm/min; 0: not known (no areas)
+	Target float64 // target clearance, mL/min (fresh dialysate: CDi = 0)
+	QB, QD float64 // mL/min
+	// Blood, when not nil, is whole blood: the model works with the
+	// blood-water flow (size_conditions.go). Nil: an aqueous solution.
+	Blood *WholeBlood
+	// Filtration is the ultrafiltration; zero is none.
+	Filtration
+	Flow Arrangement // the arrangement the filter choice and flow solves use
+	K0   float64     // cm/min; 0: not known (no areas)
 	// Reference, when not nil and K0 is 0, is a filter of the same
 	// membrane family (its KoA and area) that gives K0 (K0FromReference).
 	Reference *Filter
@@ -558,8 +561,11 @@ type CurrentFilter struct {
 type Sizing struct {
 	// K0 is the mass transfer coefficient used (cm/min), given or from the
 	// reference filter; null when not known.
-	K0               *float64        `json:"k0"`
-	Flow             string          `json:"flow"`
+	K0   *float64 `json:"k0"`
+	Flow string   `json:"flow"`
+	// QBW is the blood-side flow of the model, mL/min: QB for an aqueous
+	// solution, the blood-water flow for whole blood.
+	QBW              float64         `json:"qbw"`
 	KoA              float64         `json:"koa"`
 	AreaM2           *float64        `json:"area_m2,omitempty"`
 	NTU              float64         `json:"ntu"`
@@ -586,16 +592,18 @@ func Size(s SizeSpec) (Sizing, error) {
 	if s.Reference != nil {
 		s.K0, _ = K0FromReference(s.Reference.KoA, s.Reference.AreaM2)
 	}
-	koa, err := sizeKoA(s.Flow, s.QB, s.QD, s.Target)
+	m := s.model()
+	koa, err := m.requiredKoA(s.Flow, s.QB, s.QD, s.Target)
 	if err != nil {
 		return Sizing{}, err
 	}
-	cmin := math.Min(s.QB, s.QD)
+	cmin := math.Min(m.qbw(s.QB), s.QD)
 	out := Sizing{
 		Flow:             s.Flow.String(),
+		QBW:              m.qbw(s.QB),
 		KoA:              koa,
 		NTU:              koa / cmin,
-		ClearanceCeiling: Ceiling(s.Flow, s.QB, s.QD),
+		ClearanceCeiling: m.ceiling(s.Flow, s.QB, s.QD),
 		Countercurrent:   s.arrangement(Countercurrent),
 		Cocurrent:        s.arrangement(Cocurrent),
 	}
@@ -647,6 +655,11 @@ func (s SizeSpec) validate() error {
 		return err
 	}
 	if err := checkFlow("qd", s.QD); err != nil {
+		return err
+	}
+	// The blood and the ultrafiltration, through Operating.Validate (KoA
+	// and concentrations are not the question's).
+	if err := (Operating{QB: s.QB, QD: s.QD, CBi: 1, Blood: s.Blood, Filtration: s.Filtration}).Validate(); err != nil {
 		return err
 	}
 	if s.Flow != Countercurrent && s.Flow != Cocurrent {
@@ -724,8 +737,9 @@ func (s SizeSpec) area(koa float64) *float64 {
 
 // arrangement sizes one arrangement, marking an unreachable target.
 func (s SizeSpec) arrangement(a Arrangement) ArrangementSize {
-	out := ArrangementSize{ClearanceCeiling: Ceiling(a, s.QB, s.QD)}
-	koa, err := sizeKoA(a, s.QB, s.QD, s.Target)
+	m := s.model()
+	out := ArrangementSize{ClearanceCeiling: m.ceiling(a, s.QB, s.QD)}
+	koa, err := m.requiredKoA(a, s.QB, s.QD, s.Target)
 	if err != nil {
 		var fe *FieldError
 		if errors.As(err, &fe) {
@@ -733,7 +747,7 @@ func (s SizeSpec) arrangement(a Arrangement) ArrangementSize {
 		}
 		return out
 	}
-	ntu := koa / math.Min(s.QB, s.QD)
+	ntu := koa / math.Min(m.qbw(s.QB), s.QD)
 	out.Reachable, out.KoA, out.AreaM2, out.NTU = true, &koa, s.area(koa), &ntu
 	return out
 }
@@ -743,7 +757,7 @@ func (s SizeSpec) choose(required float64, filters []resolvedFilter) *FilterChoi
 	needed := required * (1 + s.MarginPercent/100)
 	c := &FilterChoice{MarginPercent: s.MarginPercent, NeededKoA: needed, NeededAreaM2: s.area(needed), Filters: make([]FilterFit, len(filters))}
 	for i, f := range filters {
-		k := Dialysance(s.Flow, s.QB, s.QD, f.koa)
+		k := s.model().clearance(s.Flow, s.QB, s.QD, f.koa)
 		fit := FilterFit{
 			Label:         f.label,
 			KoA:           f.koa,
@@ -763,7 +777,8 @@ func (s SizeSpec) choose(required float64, filters []resolvedFilter) *FilterChoi
 
 // current evaluates the filter in use and solves for both flows.
 func (s SizeSpec) current(f resolvedFilter) *CurrentFilter {
-	k := Dialysance(s.Flow, s.QB, s.QD, f.koa)
+	m := s.model()
+	k := m.clearance(s.Flow, s.QB, s.QD, f.koa)
 	qd, qb := Range{MinFlow, MaxFlow}, Range{MinFlow, MaxFlow}
 	if s.QDRange != nil {
 		qd = *s.QDRange
@@ -771,8 +786,8 @@ func (s SizeSpec) current(f resolvedFilter) *CurrentFilter {
 	if s.QBRange != nil {
 		qb = *s.QBRange
 	}
-	solveQD, errQD := MinimumQD(s.Flow, s.QB, f.koa, s.Target, qd)
-	solveQB, errQB := MinimumQB(s.Flow, s.QD, f.koa, s.Target, qb)
+	solveQD, errQD := minimumFlow(s.Flow, "qd", s.QB, f.koa, s.Target, qd, m)
+	solveQB, errQB := minimumFlow(s.Flow, "qb", s.QD, f.koa, s.Target, qb, m)
 	return &CurrentFilter{
 		KoA:               f.koa,
 		AreaM2:            f.area,
@@ -809,7 +824,7 @@ func (s SizeSpec) sweep(required float64) *SizeSweep {
 	return &SizeSweep{
 		KoAMax:         koaMax,
 		AreaM2Max:      s.area(koaMax),
-		Countercurrent: sizeSeries(Countercurrent, s.QB, s.QD, koaMax, s.K0, n),
-		Cocurrent:      sizeSeries(Cocurrent, s.QB, s.QD, koaMax, s.K0, n),
+		Countercurrent: s.model().series(Countercurrent, s.QB, s.QD, koaMax, s.K0, n),
+		Cocurrent:      s.model().series(Cocurrent, s.QB, s.QD, koaMax, s.K0, n),
 	}
 }

@@ -48,11 +48,7 @@ func TestCompareConditionsMatchCore(t *testing.T) {
 	op.Blood = &core.WholeBlood{Hct: 32, PlasmaWater: 0.94, RedCellWater: 0.7}
 	wantOutputs(t, p, op)
 
-	p.screenshot("compare-conditions-landscape-1024x768")
-	noSideScroll(t, p, "landscape 1024x768, conditions open")
-	p.do(chromedp.EmulateViewport(768, 1024))
-	p.screenshot("compare-conditions-portrait-768x1024")
-	noSideScroll(t, p, "portrait 768x1024, conditions open")
+	tabletShots(t, p, "compare-conditions")
 
 	// The demo button puts back an aqueous solution without
 	// ultrafiltration.
@@ -118,4 +114,54 @@ func TestCompareRestoreOlderRecord(t *testing.T) {
 		}
 	}
 	wantOutputs(t, p, core.Operating{QB: 280, QD: 700, KoA: 950, CBi: 1, Filtration: core.Filtration{Sieving: 1}})
+}
+
+// The ultrafiltration and whole-blood inputs of the sizing view: the page
+// shows core.Size's numbers for them, the blood-water note comes and goes,
+// and an error sits beside its field.
+func TestSizeConditionsMatchCore(t *testing.T) {
+	p := openSize(t)
+	p.reveal(sizeView + ` input[name="qf"]`)
+	p.typeInto("#size-qf", "15")
+	spec := sizeDemo()
+	spec.Filtration = core.Filtration{QF: 15, Sieving: 1}
+	wantSize(t, p, spec)
+	if hidden := eval[bool](p, `document.getElementById('size-blood-note').hidden`); !hidden {
+		t.Errorf("blood-water note shown for an aqueous solution")
+	}
+	p.typeInto("#size-hct", "32")
+	p.typeInto("#size-sieving", "0,9")
+	b := core.DefaultWholeBlood(32)
+	spec.Blood, spec.Sieving = &b, 0.9
+	wantSize(t, p, spec)
+	if got := eval[string](p, `document.querySelector('#size-blood-note output').textContent`); got != "258.8" {
+		t.Errorf("size qbw text = %q, want 258.8", got)
+	}
+	tabletShots(t, p, "size-conditions")
+
+	p.typeInto("#size-qf", "260")
+	if msg := eval[string](p, `document.querySelector('#view-size [data-error-for="qf"]').textContent`); !strings.Contains(msg, "blood-water flow QBW") {
+		t.Errorf("qf 260 with hct 32 on the sizing view: error %q, want it to name the blood-water flow", msg)
+	}
+	// Restoring a record without these fields blanks them.
+	eval[bool](p, `import('./js/views.js').then(m => { const h = m.views.get('size'); const v = h.inputs(); for (const k of ['qf', 'sieving', 'hct', 'plasma_water', 'red_cell_water']) delete v[k]; h.restore(v); return true; })`)
+	for _, id := range []string{"qf", "sieving", "hct", "plasma_water", "red_cell_water"} {
+		if v := eval[string](p, `document.getElementById('size-`+id+`').value`); v != "" {
+			t.Errorf("after restoring an older record, size %s = %q, want empty", id, v)
+		}
+	}
+	wantSize(t, p, sizeDemo())
+}
+
+// tabletShots takes the screenshots NAME-landscape-1024x768 and
+// NAME-portrait-768x1024 and checks that neither scrolls sideways; the
+// page is left in portrait.
+func tabletShots(t *testing.T, p *page, name string) {
+	t.Helper()
+	p.do(chromedp.EmulateViewport(1024, 768, chromedp.EmulateLandscape))
+	p.screenshot(name + "-landscape-1024x768")
+	noSideScroll(t, p, name+", landscape 1024x768")
+	p.do(chromedp.EmulateViewport(768, 1024))
+	p.screenshot(name + "-portrait-768x1024")
+	noSideScroll(t, p, name+", portrait 768x1024")
 }

@@ -169,6 +169,27 @@ func TestCompareConditionsThroughJS(t *testing.T) {
 	}
 }
 
+// size and check with ultrafiltration and whole blood: the bridge hands
+// back byte for byte what the API computes natively (core's numbers are
+// the same on every platform: core/exp.go).
+func TestSizeAndCheckConditionsThroughJS(t *testing.T) {
+	for _, c := range []struct{ entry, request string }{
+		{"size", `{"target_clearance":220,"qb":300,"qd":500,"hct":32,"qf":15,"k0":0.05,"filters":[{"koa":900}],"current_filter":{"koa":700},"sweep":{}}`},
+		{"check", `{"qb":300,"qd":500,"qf":10,"sieving":0.9,"hct":32,"cbi":100,"cbo":22,"cdo":40,"koa":800,"concentration_uncertainty_percent":2}`},
+		{"dialysance", `{"qd":500,"qf":10,"qb":300,"koa":800,"cdi1":15,"cdo1":14.6,"cdi2":14,"cdo2":14.2}`},
+	} {
+		var native []byte
+		for _, e := range api.Entries {
+			if e.Name == c.entry {
+				native = e.Call([]byte(c.request))
+			}
+		}
+		if got := call(t, c.entry, c.request); got != string(native) || !strings.HasPrefix(got, `{"ok":true`) {
+			t.Errorf("%s(%s) through JS = %s, natively %s", c.entry, c.request, got, native)
+		}
+	}
+}
+
 func TestErrorShapes(t *testing.T) {
 	for _, tc := range []struct{ request, field string }{
 		{`{"qb":-1,"qd":500,"koa":800}`, "qb"},
@@ -390,5 +411,23 @@ func BenchmarkBridgeFlowCheck(b *testing.B) {
 func BenchmarkBridgeCompareFiltrationWithSweep(b *testing.B) {
 	for b.Loop() {
 		call(b, "compare", `{"qb":300,"qd":500,"koa":800,"qf":10,"hct":32,"sweep":{}}`)
+	}
+}
+
+// BenchmarkBridgeCheckFiltrationUncertainty is a check with QF > 0 and
+// the uncertainty analysis (4000 Monte Carlo draws, each with its in-situ
+// KoA by the ultrafiltration model), through JavaScript.
+func BenchmarkBridgeCheckFiltrationUncertainty(b *testing.B) {
+	for b.Loop() {
+		call(b, "check", `{"qb":300,"qd":500,"qf":10,"cbi":100,"cbo":19,"cdo":46.3,"koa":800,"concentration_uncertainty_percent":2,"concentration_uncertainty_floor":0.5,"flow_uncertainty_percent":3}`)
+	}
+}
+
+// BenchmarkBridgeSizeConditions is one input on the sizing view with
+// ultrafiltration and whole blood: 3 filters, the filter in use with both
+// flow solves, and the chart series.
+func BenchmarkBridgeSizeConditions(b *testing.B) {
+	for b.Loop() {
+		call(b, "size", `{"target_clearance":220,"qb":300,"qd":500,"hct":32,"qf":15,"k0":0.05,"filters":[{"koa":500},{"koa":900},{"koa":1400}],"current_filter":{"koa":700},"sweep":{}}`)
 	}
 }

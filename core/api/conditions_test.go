@@ -188,3 +188,29 @@ func TestCheckConditions(t *testing.T) {
 		}
 	}
 }
+
+// size takes the same fields: echoed in input, qbw the blood-water flow,
+// and the answer is core.Size's.
+func TestSizeConditions(t *testing.T) {
+	req := `{"target_clearance":220,"qb":"300","qd":500,"hct":"32","qf":"15","sieving":"0,9","k0":0.05}`
+	var got api.SizeResponse
+	if err := json.Unmarshal(api.Size([]byte(req)), &got); err != nil || !got.OK {
+		t.Fatalf("size(%s): %v %+v", req, err, got)
+	}
+	b := core.DefaultWholeBlood(32)
+	want, err := core.Size(core.SizeSpec{Target: 220, QB: 300, QD: 500, Blood: &b, Filtration: core.Filtration{QF: 15, Sieving: 0.9}, K0: 0.05})
+	if err != nil {
+		t.Fatal(err)
+	}
+	if !reflect.DeepEqual(got.Sizing, want) {
+		t.Errorf("size(%s) = %+v, want core.Size's %+v", req, got.Sizing, want)
+	}
+	if in := got.Input; in.Blood == nil || *in.Blood != b || in.QF != 15 || in.Sieving != 0.9 || got.QBW != 300*b.WaterFraction() {
+		t.Errorf("size(%s).input = %+v (blood %v), qbw %g", req, in, in.Blood, got.QBW)
+	}
+	// Defaults: no blood, QF 0, sieving 1.
+	var plain api.SizeResponse
+	if err := json.Unmarshal(api.Size([]byte(`{"target_clearance":220,"qb":300,"qd":500}`)), &plain); err != nil || plain.Input.Blood != nil || plain.Input.QF != 0 || plain.Input.Sieving != 1 || plain.QBW != 300 {
+		t.Errorf("size defaults: %+v, %v", plain.Input, err)
+	}
+}

@@ -12,6 +12,9 @@ type SizeRequest struct {
 	TargetClearance Number `json:"target_clearance"` // required, mL/min
 	QB              Number `json:"qb"`               // required, mL/min
 	QD              Number `json:"qd"`               // required, mL/min
+	// Whole blood (hct, plasma_water, red_cell_water) and ultrafiltration
+	// (qf, sieving), as in compare.
+	Conditions
 	// Flow is "countercurrent" (the default) or "cocurrent": the
 	// arrangement of the answer, the filter choice and the flow solves.
 	Flow string `json:"flow"`
@@ -51,11 +54,14 @@ type SizeSweepRequest struct {
 
 // SizeInput echoes the operating values used, defaults filled in.
 type SizeInput struct {
-	TargetClearance float64 `json:"target_clearance"`
-	QB              float64 `json:"qb"`
-	QD              float64 `json:"qd"`
-	Flow            string  `json:"flow"`
-	MarginPercent   float64 `json:"margin_percent"`
+	TargetClearance float64          `json:"target_clearance"`
+	QB              float64          `json:"qb"`
+	QD              float64          `json:"qd"`
+	Blood           *core.WholeBlood `json:"blood,omitempty"`
+	QF              float64          `json:"qf"`
+	Sieving         float64          `json:"sieving"`
+	Flow            string           `json:"flow"`
+	MarginPercent   float64          `json:"margin_percent"`
 }
 
 // SizeResponse is a successful size.
@@ -88,6 +94,9 @@ func Size(request []byte) []byte {
 			TargetClearance: spec.Target,
 			QB:              spec.QB,
 			QD:              spec.QD,
+			Blood:           spec.Blood,
+			QF:              spec.QF,
+			Sieving:         spec.Sieving,
 			Flow:            spec.Flow.String(),
 			MarginPercent:   spec.MarginPercent,
 		},
@@ -103,6 +112,15 @@ func (r *SizeRequest) spec() (s core.SizeSpec, err error) {
 		return s, err
 	}
 	if s.QD, err = r.QD.Required("qd"); err != nil {
+		return s, err
+	}
+	if s.Blood, err = r.Conditions.read(); err != nil {
+		return s, err
+	}
+	if s.QF, err = r.QF.Optional("qf", 0); err != nil {
+		return s, err
+	}
+	if s.Sieving, err = r.Sieving.Optional("sieving", core.DefaultSieving); err != nil {
 		return s, err
 	}
 	if r.Flow != "" {

@@ -11,9 +11,11 @@ import (
 func init() { physicalChecks["size"] = sizeBounds }
 
 // sizeBounds: the echoed input lies within core's bounds; the required KoA
-// is positive, at most MaxKoA, with NTU = KoA/min(QB, QD) and the area
+// is positive, at most MaxKoA, with NTU = KoA/min(QBW, QD) and the area
 // KoA/K0/1e4 (REFERENCES); the target lies below the arrangement's
-// ceiling (counter-current min(QB, QD), co-current QB QD/(QB + QD));
+// ceiling (counter-current min(QBW, QD + QF), co-current
+// QBW (QD + QF)/(QBW + QD), QBW the blood-water flow, QB for an aqueous
+// solution: the ideal ceilings without ultrafiltration);
 // counter-current never needs more KoA than co-current (it never clears
 // less, property_test.go); the filter list keeps its definitions (a filter
 // meets the target when its KoA reaches the required KoA with the margin;
@@ -45,7 +47,14 @@ func sizeBounds(response []byte) error {
 			QD     float64 `json:"qd"`
 			Flow   string  `json:"flow"`
 			Margin float64 `json:"margin_percent"`
+			// Whole blood and ultrafiltration (size_conditions.go): the
+			// model works at the blood-water flow qbw, the ceilings are
+			// TransferCeiling's.
+			Blood   *core.WholeBlood `json:"blood"`
+			QF      float64          `json:"qf"`
+			Sieving float64          `json:"sieving"`
 		} `json:"input"`
+		QBW              float64     `json:"qbw"`
 		K0               *float64    `json:"k0"`
 		Flow             string      `json:"flow"`
 		KoA              float64     `json:"koa"`
@@ -83,9 +92,18 @@ func sizeBounds(response []byte) error {
 		in.Margin >= 0 && in.Margin <= core.MaxMarginPercent && (in.Flow == "countercurrent" || in.Flow == "cocurrent") && r.Flow == in.Flow) {
 		return fmt.Errorf("input %+v (flow %q) outside core's bounds", in, r.Flow)
 	}
-	ceilings := map[string]float64{"countercurrent": math.Min(in.QB, in.QD), "cocurrent": in.QB * in.QD / (in.QB + in.QD)}
-	if !(r.KoA > 0 && r.KoA <= core.MaxKoA) || !within(r.NTU, r.KoA/math.Min(in.QB, in.QD), r.KoA/math.Min(in.QB, in.QD)) {
-		return fmt.Errorf("KoA %g, NTU %g: want 0 < KoA <= MaxKoA and NTU = KoA/min(QB, QD)", r.KoA, r.NTU)
+	qbw := in.QB
+	if b := in.Blood; b != nil {
+		qbw *= b.PlasmaWater*(1-b.Hct/100) + b.RedCellWater*b.Hct/100
+	}
+	if !within(r.QBW, qbw, qbw) || !(in.QF >= 0 && in.QF < qbw && in.Sieving >= 0 && in.Sieving <= 1) {
+		return fmt.Errorf("qbw %g, qf %g, sieving %g: want qbw %g above qf, sieving 0 to 1", r.QBW, in.QF, in.Sieving, qbw)
+	}
+	// Counter-current min(QBW, QD + QF), co-current QBW (QD + QF)/(QBW + QD):
+	// min(QB, QD) and QB QD/(QB + QD) without ultrafiltration.
+	ceilings := map[string]float64{"countercurrent": math.Min(qbw, in.QD+in.QF), "cocurrent": qbw * (in.QD + in.QF) / (qbw + in.QD)}
+	if !(r.KoA > 0 && r.KoA <= core.MaxKoA) || !within(r.NTU, r.KoA/math.Min(qbw, in.QD), r.KoA/math.Min(qbw, in.QD)) {
+		return fmt.Errorf("KoA %g, NTU %g: want 0 < KoA <= MaxKoA and NTU = KoA/min(QBW, QD)", r.KoA, r.NTU)
 	}
 	if c := ceilings[in.Flow]; !within(r.ClearanceCeiling, c, c) || !(in.Target < r.ClearanceCeiling) {
 		return fmt.Errorf("target %g, ceiling %g: want the %s ceiling %g, above the target", in.Target, r.ClearanceCeiling, in.Flow, c)
@@ -100,7 +118,9 @@ func sizeBounds(response []byte) error {
 			return fmt.Errorf("%s: %+v, want its ceiling %g, a KoA when reachable and a message when not, the top-level KoA for %s", name, a, c, in.Flow)
 		}
 	}
-	if r.Countercurrent.Reachable && r.Cocurrent.Reachable && !within(*r.Countercurrent.KoA, 0, *r.Cocurrent.KoA) {
+	// With S < 1 and a small QD co-current can clear more (core's
+	// TestCocurrentAheadRK4), so the order is asserted for S = 1 only.
+	if (in.QF == 0 || in.Sieving == 1) && r.Countercurrent.Reachable && r.Cocurrent.Reachable && !within(*r.Countercurrent.KoA, 0, *r.Cocurrent.KoA) {
 		return fmt.Errorf("counter-current needs KoA %g, more than co-current %g", *r.Countercurrent.KoA, *r.Cocurrent.KoA)
 	}
 	ceiling := ceilings[in.Flow]

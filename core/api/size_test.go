@@ -62,7 +62,7 @@ func TestSizeIssueRequest(t *testing.T) {
 	if !got.OK || !reflect.DeepEqual(got.Sizing, want) {
 		t.Errorf("size(%s) = %+v, want core.Size's %+v", request, got.Sizing, want)
 	}
-	if got.Input != (api.SizeInput{TargetClearance: 250, QB: 300, QD: 500, Flow: "countercurrent", MarginPercent: 0}) {
+	if got.Input != (api.SizeInput{TargetClearance: 250, QB: 300, QD: 500, Sieving: core.DefaultSieving, Flow: "countercurrent", MarginPercent: 0}) {
 		t.Errorf("size(%s).input = %+v", request, got.Input)
 	}
 	// The members the README documents are there, by name.

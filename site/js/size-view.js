@@ -6,10 +6,15 @@ import { readForm, fillForm, showError } from './form.js';
 import { renderOutputs, formatNumber } from './format.js';
 import { drawChart } from './chart.js';
 
+// The ultrafiltration and whole-blood fields left blank: QF 0, S 1, an
+// aqueous solution. Records saved before these fields existed lack them,
+// and restore() must not keep what was typed before.
+const NO_CONDITIONS = { qf: '', sieving: '', hct: '', plasma_water: '', red_cell_water: '' };
+
 // Demo values: an invented request from a satellite unit. The filters on
 // the shelf are named by their area only.
 export const DEMO = {
-  target_clearance: '250', qb: '300', qd: '500', flow: 'countercurrent',
+  target_clearance: '250', qb: '300', qd: '500', flow: 'countercurrent', ...NO_CONDITIONS,
   k0: '0.05', margin_percent: '10', 'reference.koa': '', 'reference.area_m2': '',
   'current_filter.koa': '700', 'current_filter.area_m2': '',
   'qd_range.min': '300', 'qd_range.max': '800', 'qb_range.min': '150', 'qb_range.max': '450',
@@ -35,6 +40,7 @@ export function mountSize(root, engine) {
   const caption = root.querySelector('#size-chart-title');
   const flowInput = form.querySelector('input[name="flow"]');
   const flowButtons = form.querySelectorAll('[data-flow]');
+  const bloodNote = root.querySelector('#size-blood-note');
   let last = null;
   let sent = []; // sent[k] is the row index of filters[k] in the last request
 
@@ -89,6 +95,7 @@ export function mountSize(root, engine) {
   function request(v) {
     const req = {
       target_clearance: v.target_clearance, qb: v.qb, qd: v.qd, flow: v.flow,
+      qf: v.qf, sieving: v.sieving, hct: v.hct, plasma_water: v.plasma_water, red_cell_water: v.red_cell_water,
       k0: v.k0, margin_percent: v.margin_percent, sweep: {},
     };
     const any = (...names) => names.some((n) => v[n] !== '');
@@ -229,6 +236,7 @@ export function mountSize(root, engine) {
     results.dataset.state = 'ok';
     last = response;
     renderOutputs(results, response);
+    bloodNote.hidden = !response.input.blood;
     renderCards(response);
     renderChoice(response);
     renderCurrent(response);
@@ -273,7 +281,7 @@ export function mountSize(root, engine) {
     snapshot: () => (results.dataset.state === 'ok' && last ? { view: 'size', inputs: inputs(), result: withoutSweep(last) } : null),
     inputs,
     restore(values) {
-      fill(values);
+      fill({ ...NO_CONDITIONS, ...values });
       update();
     },
   };
