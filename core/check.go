@@ -412,19 +412,21 @@ type solution struct {
 // DiffusiveDialysance, inSituKoA) times ratio, the model's KoA over that
 // closed form at the central values; the two move alike with the
 // readings, so the start is off by the product of the readings' spread and
-// the ultrafiltration's effect, about 1e-4, and the secant ends in two or
-// three evaluations. Draws are solved to drawTolerance; a zero ratio
-// (central KoA unknown) means no hint.
-type drawHint struct{ ratio [2]float64 }
+// the ultrafiltration's effect, about 1e-4. A Newton step with slope, the
+// central dK/dKoA, then the secant, end in about three evaluations. Draws
+// are solved to drawTolerance; a zero ratio (central KoA unknown) means no
+// hint.
+type drawHint struct{ ratio, slope [2]float64 }
 
 // noHint asks solve to find the in-situ KoA without a starting point, to
 // the model's own accuracy.
 var noHint drawHint
 
-// drawTolerance is the relative step at which a draw's KoA stops: far
-// below any interval the Monte Carlo can resolve (its percentiles move by
-// about 1e-3 relative between seeds).
-const drawTolerance = 1e-10
+// drawTolerance is the relative step at which a draw's KoA stops; the
+// secant converges superlinearly, so the KoA is then nearer than that, and
+// far closer than any interval the Monte Carlo can resolve (its
+// percentiles move by about 1e-3 relative between seeds).
+const drawTolerance = 1e-7
 
 // solve computes a check's numbers. With ultrafiltration the in-situ KoA
 // of each arrangement is found by root finding, started as hint says for
@@ -473,7 +475,7 @@ func solve(m Measurement, hint drawHint) solution {
 				st := start{}
 				if r := hint.ratio[i]; r > 0 {
 					if g, ok := inSituKoA(a, qb, m.QD, s.dd); ok && g > 0 {
-						st = start{koa: g * r, offset: 1e-4, tol: drawTolerance}
+						st = start{koa: g * r, offset: 1e-4, tol: drawTolerance, slope: hint.slope[i]}
 					}
 				}
 				s.koa[i], s.reach[i] = filteredKoA(a, m, s.k, st)

@@ -25,6 +25,7 @@ func TestDrawHint(t *testing.T) {
 		for i, a := range Arrangements {
 			if g, ok := inSituKoA(a, m.BloodSideFlow(), m.QD, central.dd); ok && g > 0 && central.reach[i] && central.koa[i] > 0 {
 				hint.ratio[i] = central.koa[i] / g
+				hint.slope[i] = central.k / central.koa[i] / koaSensitivity(a, m.model(), central.k, central.dd, central.koa[i])
 			}
 		}
 		if hint.ratio[0] == 0 {

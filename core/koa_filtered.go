@@ -167,23 +167,31 @@ func koaForDialysance(a Arrangement, qb, qd float64, f Filtration, d float64) (f
 }
 
 // start is where invertClearance begins: KoA (0 for none), the relative
-// offset of the secant's second point, and the relative step at which the
-// iteration stops.
-type start struct{ koa, offset, tol float64 }
+// offset of the secant's second point, or, when slope > 0, a Newton step
+// with that slope (dK/dKoA near the answer) to reach it, and the relative
+// step at which the iteration stops.
+type start struct{ koa, offset, tol, slope float64 }
 
 // nearStart is a start within some per cent of the answer, solved to the
 // model's own accuracy.
-func nearStart(koa float64) start { return start{koa, 0.01, 1e-13} }
+func nearStart(koa float64) start { return start{koa: koa, offset: 0.01, tol: 1e-13} }
 
 // secantKoA solves clearance(KoA) = k by the secant method from st.koa and
-// st.koa (1 + st.offset), stopping when a step is below st.tol of the KoA
+// st.koa (1 + st.offset), or the Newton step from st.koa with st.slope,
+// stopping when a step is below st.tol of the KoA
 // or the clearance is within 1e-15 of k (a few rounding errors of the
 // model). It reports false (leaving the work to bracketing) if an iterate
 // leaves (0, MaxKoA] or 12 steps do not settle.
 func secantKoA(clearance func(float64) float64, k float64, st start) (koa float64, evaluations int, ok bool) {
 	x0 := st.koa
+	f0 := clearance(x0) - k
 	x1 := x0 * (1 + st.offset)
-	f0, f1 := clearance(x0)-k, clearance(x1)-k
+	if st.slope > 0 {
+		if x1 = x0 - f0/st.slope; x1 == x0 || !(x1 > 0) {
+			return x0, 1, x1 == x0
+		}
+	}
+	f1 := clearance(x1) - k
 	evaluations = 2
 	for range 12 {
 		if f1 == f0 {

@@ -14,7 +14,11 @@ import "math"
 //   - the nearest singularity of the flows 1/QB, 1/QD: for a function
 //     analytic inside the Bernstein ellipse of parameter rho around the
 //     panel the error falls like rho^(-2n) (Trefethen, Approximation
-//     Theory and Approximation Practice, ch. 19; from memory).
+//     Theory and Approximation Practice, ch. 19; from memory), times a
+//     factor that grows without bound as the singularity nears, where e^A
+//     has a branch point of high order. The rule asks rho^(-n) <= 1e-17,
+//     the square of the bare estimate: TestRuleChoice finds errors up to
+//     1e-13 with rho^(-1.5 n) and none beyond 1e-15 with rho^(-n).
 //
 // The largest rule, 16 points, is used when no smaller one meets both; the
 // panels are sized so that it always does (see membrane.integrate).

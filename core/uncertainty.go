@@ -145,6 +145,10 @@ func propagate(m Measurement, o CheckOptions) Uncertainty {
 		for i, a := range Arrangements {
 			if g, ok := inSituKoA(a, m.BloodSideFlow(), m.QD, central.dd); ok && g > 0 && central.reach[i] && central.koa[i] > 0 {
 				hint.ratio[i] = central.koa[i] / g
+				// dK/dKoA = (K/KoA)/(d ln KoA/d ln K) at the centre.
+				if s := koaSensitivity(a, m.model(), central.k, central.dd, central.koa[i]); s > 0 {
+					hint.slope[i] = central.k / central.koa[i] / s
+				}
 			}
 		}
 	}

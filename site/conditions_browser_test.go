@@ -8,6 +8,7 @@ import (
 	"github.com/chromedp/chromedp"
 
 	"clearkit/core"
+	"clearkit/core/api"
 )
 
 // The ultrafiltration and whole-blood inputs of the compare view: typed
@@ -164,4 +165,35 @@ func tabletShots(t *testing.T, p *page, name string) {
 	p.do(chromedp.EmulateViewport(768, 1024))
 	p.screenshot(name + "-portrait-768x1024")
 	noSideScroll(t, p, name+", portrait 768x1024")
+}
+
+// The sieving and whole-blood inputs of the clearance test (field checks
+// view): the page shows what the API computes natively from the same
+// request, and the blood-water note appears for whole blood.
+func TestCheckViewConditionsMatchAPI(t *testing.T) {
+	p := openChecks(t)
+	p.reveal("#check-sieving")
+	p.typeInto("#check-sieving", "0,9")
+	p.typeInto("#check-hct", "32")
+	req := map[string]string{"sieving": "0,9", "hct": "32", "plasma_water": "", "red_cell_water": ""}
+	for k, v := range demoClearance {
+		req[k] = v
+	}
+	resp := native(t, api.Check, req)
+	wantShown(t, p, "#check-results", resp)
+	if hidden := eval[bool](p, `document.getElementById('check-blood-note').hidden`); hidden {
+		t.Errorf("blood-water note hidden for whole blood")
+	}
+	if got := eval[string](p, `document.querySelector('#check-blood-note output').textContent`); got != "258.8" {
+		t.Errorf("check qbw text = %q, want 258.8", got)
+	}
+	tabletShots(t, p, "check-conditions")
+	p.typeInto("#check-hct", "0,4")
+	if msg := eval[string](p, `document.querySelector('#view-check [data-error-for="hct"]').textContent`); !strings.Contains(msg, "is in percent") {
+		t.Errorf("hct 0,4: error %q, want it to say the haematocrit is in percent", msg)
+	}
+	p.typeInto("#check-hct", "")
+	if hidden := eval[bool](p, `document.getElementById('check-blood-note').hidden`); !hidden {
+		t.Errorf("blood-water note shown for an aqueous solution")
+	}
 }

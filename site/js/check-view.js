@@ -7,11 +7,16 @@
 import { readForm, fillForm, showError } from './form.js';
 import { renderOutputs, at } from './format.js';
 
+// The sieving and whole-blood fields of the clearance test left blank: S 1,
+// an aqueous solution. Records saved before these fields existed lack
+// them, and restoring one must not keep what was typed before.
+const NO_CONDITIONS = { sieving: '', hct: '', plasma_water: '', red_cell_water: '' };
+
 // Demo values: an invented loaner machine on a bench, urea test solution
 // in mg/dL, a filter rated KoA 800 mL/min.
 export const DEMO = {
   clearance: {
-    qb: '300', qd: '500', qf: '10', koa: '800', cbi: '100', cbo: '19', cdi: '', cdo: '46.3',
+    qb: '300', qd: '500', qf: '10', koa: '800', cbi: '100', cbo: '19', cdi: '', cdo: '46.3', ...NO_CONDITIONS,
     mass_balance_tolerance_percent: '', clearance_tolerance_percent: '',
     concentration_uncertainty_percent: '2', concentration_uncertainty_floor: '0.5', flow_uncertainty_percent: '3',
   },
@@ -153,6 +158,7 @@ export function mountCheck(root, engine) {
     mark.textContent = r.mass_balance_ok ? `${LEVELS.pass.symbol} within` : `${LEVELS.fail.symbol} outside`;
     mark.dataset.level = r.mass_balance_ok ? 'pass' : 'fail';
     showFindings(checkResults.querySelector('.findings'), r.findings);
+    checkResults.querySelector('#check-blood-note').hidden = !r.input.blood;
   });
 
   // Conductivity.
@@ -206,7 +212,7 @@ export function mountCheck(root, engine) {
   }
 
   function fillAll(inputs) {
-    if (inputs.clearance) fillForm(checkForm, inputs.clearance);
+    if (inputs.clearance) fillForm(checkForm, { ...NO_CONDITIONS, ...inputs.clearance });
     if (inputs.conductivity) fillForm(condForm, inputs.conductivity);
     for (const circuit of Object.keys(timed)) {
       if (inputs[circuit]) fillTimed(circuit, inputs[circuit]);
