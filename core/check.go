@@ -244,6 +244,9 @@ type ArrangementFit struct {
 	// change of KoA per per cent of clearance. It grows without bound as
 	// the clearance approaches the ceiling. Null when KoA is null or 0.
 	Sensitivity *float64 `json:"sensitivity"`
+	// SensitivityUnbounded is true when the clearance is so close to the
+	// ceiling that the sensitivity overflows (Sensitivity is then null).
+	SensitivityUnbounded bool `json:"sensitivity_unbounded,omitempty"`
 	// With a rated KoA: the clearance the rated filter gives in this
 	// arrangement, the measured clearance's deviation from it and the
 	// in-situ KoA's deviation from the rating (fractions); otherwise null.
@@ -370,7 +373,17 @@ func Check(m Measurement, o CheckOptions) (CheckResult, error) {
 		if s.reach[i] {
 			fit.KoA = ptr(s.koa[i])
 			if s.koa[i] > 0 {
-				fit.Sensitivity = ptr(koaSensitivity(a, op, s.k, s.dd, s.koa[i]))
+				// The sensitivity is at least 1 (the inverse relations are
+				// convex; 1e-6 allows for rounding where K is small and the
+				// sensitivity near 1). At the edge of the ceiling its derivative
+				// overflows or drowns in rounding (values below 1, even
+				// negative, were found by fuzzing); it is then reported as
+				// unbounded, with Sensitivity null, rather than as a number.
+				if sens := koaSensitivity(a, op, s.k, s.dd, s.koa[i]); sens >= 1-1e-6 && !math.IsInf(sens, 0) {
+					fit.Sensitivity = ptr(sens)
+				} else {
+					fit.SensitivityUnbounded = true
+				}
 			}
 		}
 		if o.RatedKoA > 0 {
@@ -623,6 +636,9 @@ func judge(m Measurement, o CheckOptions, r CheckResult) (string, []Finding) {
 	if cc.KoA != nil && co.KoA == nil {
 		add("note", "not_cocurrent", "The clearance is above %.1f mL/min, the most co-current flow can give at these flows, so the dialysate runs counter-current.",
 			co.Ceiling)
+	}
+	if cc.SensitivityUnbounded {
+		add("note", "koa_sensitive", "KoA is not determined here: the clearance is so close to the counter-current ceiling that any error in it moves the KoA without bound. A lower blood flow, or a higher dialysate flow, measures KoA more precisely.")
 	}
 	if cc.Sensitivity != nil && *cc.Sensitivity > illConditioned {
 		add("note", "koa_sensitive", "KoA is poorly determined here: 1 %% in clearance moves the counter-current KoA by %.0f %%. A lower blood flow, or a higher dialysate flow, measures KoA more precisely.",

@@ -27,10 +27,18 @@ var (
 // clearance lies in [0, QB] (K = QB - (QB - QF) CBo/CBi with 0 <= CBo <=
 // CBi), the dialysate side in [0, QD + QF]; the mass balance error is at
 // most 1 (the gain is not negative); each KoA is null exactly when the
-// diffusive dialysance is at or above the arrangement's dialysance
-// ceiling (REFERENCES: the KoA -> infinity limits), else >= 0, with a
+// clearance is at or above the arrangement's clearance ceiling (the
+// model's KoA -> infinity limit, with QF counted), else >= 0, with a
 // sensitivity of at least 1 (the inverse relations are convex, check.go);
 // the intervals are ordered; the words are from their lists.
+// ptrString shows a *float64 for a failure message.
+func ptrString(p *float64) string {
+	if p == nil {
+		return "null"
+	}
+	return fmt.Sprint(*p)
+}
+
 func checkBounds(response []byte) error {
 	var r api.CheckResponse
 	if err := json.Unmarshal(response, &r); err != nil {
@@ -47,9 +55,14 @@ func checkBounds(response []byte) error {
 		return fmt.Errorf("mass balance ok %v with error %g and tolerance %g", r.MassBalanceOK, r.MassBalanceError, r.MassBalanceTolerance)
 	}
 	for i, fit := range []core.ArrangementFit{r.Countercurrent, r.Cocurrent} {
-		ceiling := [2]float64{math.Min(m.QB, m.QD), m.QB * m.QD / (m.QB + m.QD)}[i]
-		if (fit.KoA == nil) != (r.DiffusiveDialysance >= ceiling*(1-boundSlack)) && !within(r.DiffusiveDialysance, ceiling, ceiling) {
-			return fmt.Errorf("arrangement %d: KoA %v with dialysance %g and ceiling %g", i, fit.KoA, r.DiffusiveDialysance, ceiling)
+		// The model's own ceiling, with the ultrafiltration counted: at QF > 0
+		// the QF = 0 limits min(QB, QD) and QB QD/(QB + QD) no longer apply.
+		ceiling := fit.Ceiling
+		if !within(ceiling, 0, m.QB) {
+			return fmt.Errorf("arrangement %d: clearance ceiling %g outside 0 to QB", i, ceiling)
+		}
+		if (fit.KoA == nil) != (r.Clearance >= ceiling*(1-boundSlack)) && !within(r.Clearance, ceiling, ceiling) {
+			return fmt.Errorf("arrangement %d: KoA %v with clearance %g and ceiling %g", i, ptrString(fit.KoA), r.Clearance, ceiling)
 		}
 		if fit.KoA != nil && *fit.KoA < 0 || fit.Sensitivity != nil && *fit.Sensitivity < 1-boundSlack {
 			return fmt.Errorf("arrangement %d: KoA %v, sensitivity %v", i, *fit.KoA, *fit.Sensitivity)
