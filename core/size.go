@@ -455,7 +455,10 @@ func sizeSeries(a Arrangement, qb, qd, koaMax, k0 float64, n int) SizeSeries {
 	}
 	s := SizeSeries{Target: targets, KoA: make([]float64, len(targets)), ClearanceCeiling: ceiling}
 	for i, x := range targets {
-		s.KoA[i] = requiredKoA(a, qb, qd, x)
+		// No target passes the clearance at koaMax, so the exact KoA is at
+		// most koaMax; near saturation the inverse's rounding can land just
+		// above it (2000.0002 for 2000 at QB 30, QD 50, found by fuzzing).
+		s.KoA[i] = math.Min(requiredKoA(a, qb, qd, x), koaMax)
 	}
 	if k0 != 0 {
 		s.AreaM2 = make([]float64, len(targets))
