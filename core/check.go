@@ -421,25 +421,63 @@ type solution struct {
 
 // drawHint speeds up the in-situ KoA of the draws of an uncertainty
 // analysis with ultrafiltration. Each draw's KoA starts at the closed-form
-// KoA of its diffusive dialysance (the approximation of
+// KoA g of its diffusive dialysance (the approximation of
 // DiffusiveDialysance, inSituKoA) times ratio, the model's KoA over that
 // closed form at the central values; the two move alike with the
 // readings, so the start is off by the product of the readings' spread and
-// the ultrafiltration's effect, about 1e-4. A Newton step with slope, the
-// central dK/dKoA, then the secant, end in about three evaluations. Draws
-// are solved to drawTolerance; a zero ratio (central KoA unknown) means no
-// hint.
-type drawHint struct{ ratio, slope [2]float64 }
+// the ultrafiltration's effect (5e-4 relative in the median draw of the
+// demo check, 2.4e-3 at worst). A Newton step follows, with the closed
+// form's own slope dD/dKoA at the draw times slopeRatio, the model's
+// dK/dKoA over that slope at the centre: it leaves the KoA within 3e-7 in
+// the median draw (2e-5 with the central slope unscaled), and one secant
+// step then ends most draws in two model evaluations. Draws are solved to
+// drawTolerance; a zero ratio (central KoA unknown) means no hint.
+type drawHint struct {
+	ratio, slopeRatio [2]float64
+	// quick evaluates the model with drawRules: for the Monte Carlo draws,
+	// not for the central differences of the linearised interval.
+	quick bool
+}
+
+// newDrawHint returns the hint for the draws around m, whose in-situ KoA
+// without a hint is central; no hint without ultrafiltration.
+func newDrawHint(m Measurement, central solution) drawHint {
+	var hint drawHint
+	if m.QF == 0 {
+		return hint
+	}
+	qb := m.BloodSideFlow()
+	for i, a := range Arrangements {
+		g, ok := inSituKoA(a, qb, m.QD, central.dd)
+		if !ok || g <= 0 || !central.reach[i] || central.koa[i] <= 0 {
+			continue
+		}
+		hint.ratio[i] = central.koa[i] / g
+		// dK/dKoA = (K/KoA)/(d ln KoA/d ln K) at the centre, over the
+		// closed form's slope there.
+		if s := koaSensitivity(a, m.model(), central.k, central.dd, central.koa[i]); s > 0 {
+			hint.slopeRatio[i] = central.k / central.koa[i] / s / closedSlope(a, qb, m.QD, central.dd, g)
+		}
+	}
+	return hint
+}
+
+// closedSlope is dD/dKoA of the closed form at dialysance d, KoA koa > 0:
+// (D/KoA)/(d ln KoA/d ln D) (dialysanceSensitivity).
+func closedSlope(a Arrangement, qb, qd, d, koa float64) float64 {
+	return d / koa / dialysanceSensitivity(a, qb, qd, d, koa)
+}
 
 // noHint asks solve to find the in-situ KoA without a starting point, to
 // the model's own accuracy.
 var noHint drawHint
 
 // drawTolerance is the relative step at which a draw's KoA stops; the
-// secant converges superlinearly, so the KoA is then nearer than that, and
-// far closer than any interval the Monte Carlo can resolve (its
-// percentiles move by about 1e-3 relative between seeds).
-const drawTolerance = 1e-7
+// secant converges superlinearly, so the KoA is then far nearer than that
+// (TestDrawHint: within 1e-8 of the KoA found without a hint), and far
+// closer than any interval the Monte Carlo can resolve (its percentiles
+// move by about 1e-3 relative between seeds).
+const drawTolerance = 1e-6
 
 // solve computes a check's numbers. With ultrafiltration the in-situ KoA
 // of each arrangement is found by root finding, started as hint says for
@@ -488,7 +526,10 @@ func solve(m Measurement, hint drawHint) solution {
 				st := start{}
 				if r := hint.ratio[i]; r > 0 {
 					if g, ok := inSituKoA(a, qb, m.QD, s.dd); ok && g > 0 {
-						st = start{koa: g * r, offset: 1e-4, tol: drawTolerance, slope: hint.slope[i]}
+						st = start{koa: g * r, offset: 1e-4, tol: drawTolerance, quick: hint.quick}
+						if sr := hint.slopeRatio[i]; sr > 0 {
+							st.slope = sr * closedSlope(a, qb, m.QD, s.dd, g)
+						}
 					}
 				}
 				s.koa[i], s.reach[i] = filteredKoA(a, m, s.k, st)

@@ -11,14 +11,15 @@ import (
 )
 
 // measured builds the samples a clearance test would give for arrangement
-// a at op (QF = 0), by running the flow model forward with core.Evaluate.
+// a at op (with its ultrafiltration, if any), by running the flow model
+// forward with core.Evaluate.
 func measured(t testing.TB, a core.Arrangement, op core.Operating) core.Measurement {
 	t.Helper()
 	p, err := core.Evaluate(a, op)
 	if err != nil {
 		t.Fatalf("Evaluate(%v, %+v) error: %v", a, op, err)
 	}
-	return core.Measurement{QB: op.QB, QD: op.QD, CBi: op.CBi, CBo: p.BloodOutlet, CDi: op.CDi, CDo: p.DialysateOutlet}
+	return core.Measurement{QB: op.QB, QD: op.QD, QF: op.QF, Sieving: op.Sieving, CBi: op.CBi, CBo: p.BloodOutlet, CDi: op.CDi, CDo: p.DialysateOutlet}
 }
 
 func check(t testing.TB, m core.Measurement, o core.CheckOptions) core.CheckResult {

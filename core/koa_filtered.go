@@ -82,12 +82,20 @@ const (
 // central value of an uncertainty analysis, the previous point of a
 // series), begins a secant iteration there, which ends in a few
 // evaluations when the start is close; without one, or when the iteration
-// does not settle, the root is bracketed and found by FindRoot.
+// does not settle, the root is bracketed and found by FindRoot. A quick
+// start evaluates the model with drawRules.
 func invertClearance(a Arrangement, m Operating, k float64, st start) inversion {
 	clearance := func(koa float64) float64 {
 		m.KoA = koa
 		c, _ := clearanceAt(a, m)
 		return c
+	}
+	if st.quick && m.QF > 0 {
+		// clearanceAt with the looser rules: K - D CDi/CBi.
+		clearance = func(koa float64) float64 {
+			kf, d := transfer(a, m.QB, m.QD, koa, m.Filtration, drawRules)
+			return kf - d*(m.CDi/m.CBi)
+		}
 	}
 	m.KoA = 0
 	floor, ceiling := clearanceAt(a, m)
@@ -169,8 +177,12 @@ func koaForDialysance(a Arrangement, qb, qd float64, f Filtration, d float64) (f
 // start is where invertClearance begins: KoA (0 for none), the relative
 // offset of the secant's second point, or, when slope > 0, a Newton step
 // with that slope (dK/dKoA near the answer) to reach it, and the relative
-// step at which the iteration stops.
-type start struct{ koa, offset, tol, slope float64 }
+// step at which the iteration stops; quick evaluates the model with
+// drawRules (the draws of an uncertainty analysis).
+type start struct {
+	koa, offset, tol, slope float64
+	quick                   bool
+}
 
 // nearStart is a start within some per cent of the answer, solved to the
 // model's own accuracy.
@@ -178,9 +190,10 @@ func nearStart(koa float64) start { return start{koa: koa, offset: 0.01, tol: 1e
 
 // secantKoA solves clearance(KoA) = k by the secant method from st.koa and
 // st.koa (1 + st.offset), or the Newton step from st.koa with st.slope,
-// stopping when a step is below st.tol of the KoA
-// or the clearance is within 1e-15 of k (a few rounding errors of the
-// model). It reports false (leaving the work to bracketing) if an iterate
+// stopping when a step is below st.tol of the KoA (the new point is then
+// returned without evaluating it: the secant converges superlinearly, so
+// it is nearer than the step) or the clearance is within 1e-15 of k (a few
+// rounding errors of the model). It reports false (leaving the work to bracketing) if an iterate
 // leaves (0, MaxKoA] or 12 steps do not settle.
 func secantKoA(clearance func(float64) float64, k float64, st start) (koa float64, evaluations int, ok bool) {
 	x0 := st.koa
@@ -201,10 +214,13 @@ func secantKoA(clearance func(float64) float64, k float64, st start) (koa float6
 		if !(x2 > 0 && x2 <= MaxKoA) {
 			return 0, evaluations, false
 		}
+		if math.Abs(x2-x1) <= st.tol*x2 {
+			return x2, evaluations, true
+		}
 		x0, f0, x1 = x1, f1, x2
 		f1 = clearance(x1) - k
 		evaluations++
-		if math.Abs(x1-x0) <= st.tol*x1 || math.Abs(f1) <= 1e-15*k {
+		if math.Abs(f1) <= 1e-15*k {
 			return x1, evaluations, true
 		}
 	}

@@ -4,8 +4,8 @@ import "math"
 
 // Gauss-Legendre rules for the quadrature along the membrane. An n-point
 // rule integrates polynomials of degree 2n - 1 exactly. Each panel takes
-// the smallest rule whose error is below 1e-17 for two features
-// of the integrand e^A g:
+// the smallest rule whose error is below a target (1e-17 for gaussRules,
+// looser for drawRules) for two features of the integrand e^A g:
 //
 //   - the exponential: for e^(c t) over a panel of width h the relative
 //     error is about (c h)^(2n) (n!)^4 / ((2n+1) ((2n)!)^3) (from the
@@ -16,13 +16,29 @@ import "math"
 //     panel the error falls like rho^(-2n) (Trefethen, Approximation
 //     Theory and Approximation Practice, ch. 19; from memory), times a
 //     factor that grows without bound as the singularity nears, where e^A
-//     has a branch point of high order. The rule asks rho^(-n) <= 1e-17,
+//     has a branch point of high order. The rule asks rho^(-n) <= target,
 //     the square of the bare estimate: TestRuleChoice finds errors up to
 //     1e-13 with rho^(-1.5 n) and none beyond 1e-15 with rho^(-n).
 //
 // The largest rule, 16 points, is used when no smaller one meets both; the
 // panels are sized so that it always does (see membrane.integrate).
-var gaussRules = func() []gaussRule {
+var gaussRules = makeRules(logTarget)
+
+// drawRules aim at drawTarget, for the draws of an uncertainty analysis
+// (drawHint): at routine points they use 6 nodes where gaussRules use 12.
+// TestDrawRules bounds what that costs in K and D.
+var drawRules = makeRules(drawTarget * math.Ln10)
+
+// The relative error each panel's rule aims at, 1e-17, and its logarithm;
+// drawTarget is the decimal exponent of the target of drawRules.
+const (
+	logTarget  = -17 * math.Ln10
+	drawTarget = -12
+)
+
+// makeRules returns the rules of 6, 8, 12 and 16 points with their limits
+// for the relative error e^logTarget.
+func makeRules(logTarget float64) []gaussRule {
 	var rules []gaussRule
 	for _, n := range []int{6, 8, 12, 16} {
 		nodes, weights := legendreRule(n)
@@ -43,33 +59,30 @@ var gaussRules = func() []gaussRule {
 		})
 	}
 	return rules
-}()
-
-// The relative error each panel's rule aims at, 1e-17, and its logarithm.
-const logTarget = -17 * math.Ln10
+}
 
 // gaussRule is an n-point rule on [-1, 1] with the largest change of the
 // exponent (maxSpread = c h) and the smallest Bernstein parameter (minRho)
-// at which its error estimates stay below 1e-17.
+// at which its error estimates stay below the target of its set.
 type gaussRule struct {
 	nodes, weights    []float64
 	maxSpread, minRho float64
 }
 
-// ruleFor returns the smallest rule for a panel across which the exponent
-// changes by spread and whose nearest singularity lies at distance d from
-// the panel, of half-width hw.
-func ruleFor(spread, d, hw float64) *gaussRule {
+// ruleFor returns the smallest rule of rules for a panel across which the
+// exponent changes by spread and whose nearest singularity lies at
+// distance d from the panel, of half-width hw.
+func ruleFor(rules []gaussRule, spread, d, hw float64) *gaussRule {
 	// The Bernstein ellipse through a point on the real axis at distance d
 	// beyond an end: rho = delta + sqrt(delta^2 - 1), delta = 1 + d/hw.
 	delta := 1 + d/hw
 	rho := delta + math.Sqrt(delta*delta-1)
-	for i := range gaussRules[:len(gaussRules)-1] {
-		if r := &gaussRules[i]; spread <= r.maxSpread && rho >= r.minRho {
+	for i := range rules[:len(rules)-1] {
+		if r := &rules[i]; spread <= r.maxSpread && rho >= r.minRho {
 			return r
 		}
 	}
-	return &gaussRules[len(gaussRules)-1]
+	return &rules[len(rules)-1]
 }
 
 // legendreRule returns the n-point Gauss-Legendre nodes (ascending) and

@@ -86,6 +86,12 @@ func (f Filtration) validate(qb float64, flow string) error {
 //	Transfer(a, qb, qd, 0, {qf, s}) = qb (1 - (1 - qf/qb)^s), 0
 //	Transfer(a, qb, qd, 0, {qf, 1}) = qf, 0
 func Transfer(a Arrangement, qb, qd, koa float64, f Filtration) (k, d float64) {
+	return transfer(a, qb, qd, koa, f, gaussRules)
+}
+
+// transfer is Transfer with the quadrature's rules: gaussRules, or
+// drawRules where a looser accuracy is enough (see drawHint).
+func transfer(a Arrangement, qb, qd, koa float64, f Filtration, rules []gaussRule) (k, d float64) {
 	if f.QF == 0 {
 		d := Dialysance(a, qb, qd, koa)
 		return d, d
@@ -100,6 +106,7 @@ func Transfer(a Arrangement, qb, qd, koa float64, f Filtration) (k, d float64) {
 		return -qb * math.Expm1(f.Sieving*math.Log1p(-f.QF/qb)), 0
 	}
 	m := newMembrane(a, qb, qd, koa, f)
+	m.rules = rules
 	k, d = m.solve()
 	// Near saturation the quadrature can round to an ulp above the
 	// ceiling, which no filter reaches; the ceiling is exact. (D has no
@@ -185,15 +192,16 @@ func TransferCeiling(a Arrangement, qb, qd, qf float64) (k, d float64) {
 type membrane struct {
 	counter    bool
 	qb, qd, qf float64
-	lam, lamE  float64 // lam and lam E
-	sqf        float64 // S QF = lam (1 - E)
-	delta      float64 // counter-current QD + QF - QB
-	tr         float64 // where A is largest; offsets tau = s - tr
-	qbr, qdr   float64 // QB(tr), QD(tr)
+	lam, lamE  float64     // lam and lam E
+	sqf        float64     // S QF = lam (1 - E)
+	delta      float64     // counter-current QD + QF - QB
+	tr         float64     // where A is largest; offsets tau = s - tr
+	qbr, qdr   float64     // QB(tr), QD(tr)
+	rules      []gaussRule // the quadrature's rules (gaussRules by default)
 }
 
 func newMembrane(a Arrangement, qb, qd, koa float64, f Filtration) membrane {
-	m := membrane{counter: a == Countercurrent, qb: qb, qd: qd, qf: f.QF, sqf: f.Sieving * f.QF}
+	m := membrane{counter: a == Countercurrent, qb: qb, qd: qd, qf: f.QF, sqf: f.Sieving * f.QF, rules: gaussRules}
 	// lam = KoA/phi(Pe) = S QF/(1 - e^-Pe): the first form is accurate for
 	// small Pe, the second for large Pe (KoA -> 0 gives Pe = +Inf and
 	// lam = S QF).
@@ -375,9 +383,9 @@ func (m *membrane) rule(t0, t1, left, right float64) *gaussRule {
 	hw := (t1 - t0) / 2
 	lo, hi := t0-hw, t1+hw
 	if hi >= right || lo <= left {
-		return &gaussRules[len(gaussRules)-1]
+		return &m.rules[len(m.rules)-1]
 	}
-	return ruleFor(2*hw*m.rate(lo, hi), math.Min(right-t1, t0-left), hw)
+	return ruleFor(m.rules, 2*hw*m.rate(lo, hi), math.Min(right-t1, t0-left), hw)
 }
 
 var panelSpread = float64(panelSpreadDefault)

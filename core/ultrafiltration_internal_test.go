@@ -130,6 +130,46 @@ func TestRuleChoice(t *testing.T) {
 	t.Logf("worst relative difference from the 16-point rule: %.2g", worst)
 }
 
+// The looser rules of the Monte Carlo draws (drawRules, aiming at 1e-12
+// per panel) against the rules of Transfer (gaussRules, 1e-17), which
+// TestRuleChoice, the closed forms at QF -> 0 and the RK4 comparison
+// validate: over the same seeded random grid of the whole accepted range,
+// and over routine points (QB 150-500, QD 300-800, KoA 300-1500, QF up to
+// 60 mL/min), K and D agree to drawAgreement relative to K. That is the
+// whole cost of the looser rules: a draw's KoA moves by drawAgreement
+// times its sensitivity d ln KoA/d ln K, far below the 1e-3 the Monte
+// Carlo's percentiles resolve.
+func TestDrawRules(t *testing.T) {
+	const drawAgreement = 5e-12
+	r := rand.New(rand.NewPCG(20240601, 9))
+	logUniform := func(lo, hi float64) float64 { return math.Exp(math.Log(lo) + r.Float64()*(math.Log(hi)-math.Log(lo))) }
+	var worst, worstRoutine float64
+	for i := range 40000 {
+		routine := i%2 == 1
+		qb, qd := logUniform(1e-3, 1e5), logUniform(1e-3, 1e5)
+		koa := logUniform(1e-3, 1e8)
+		f := Filtration{QF: qb * logUniform(1e-8, 0.99), Sieving: r.Float64()}
+		if routine {
+			qb, qd, koa = 150+350*r.Float64(), 300+500*r.Float64(), 300+1200*r.Float64()
+			f = Filtration{QF: 60 * r.Float64(), Sieving: 0.5 + 0.5*r.Float64()}
+		}
+		for _, a := range Arrangements {
+			k, d := transfer(a, qb, qd, koa, f, gaussRules)
+			kq, dq := transfer(a, qb, qd, koa, f, drawRules)
+			e := math.Max(math.Abs(k-kq), math.Abs(d-dq)) / k
+			if routine {
+				worstRoutine = math.Max(worstRoutine, e)
+			} else {
+				worst = math.Max(worst, e)
+			}
+			if e > drawAgreement {
+				t.Errorf("transfer(%v, %g, %g, %g, %+v) = %.17g, %.17g with drawRules, %.17g, %.17g with gaussRules", a, qb, qd, koa, f, kq, dq, k, d)
+			}
+		}
+	}
+	t.Logf("drawRules against gaussRules: worst relative difference %.2g over the whole range, %.2g at routine points", worst, worstRoutine)
+}
+
 func newMembraneSolve(a Arrangement, qb, qd, koa float64, f Filtration) (k, d float64) {
 	m := newMembrane(a, qb, qd, koa, f)
 	return m.solve()

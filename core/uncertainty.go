@@ -140,18 +140,9 @@ func propagate(m Measurement, o CheckOptions) Uncertainty {
 	// With ultrafiltration the central in-situ KoA, against its closed-form
 	// counterpart, starts the root finding of every draw (drawHint).
 	central := solve(m, noHint)
-	var hint drawHint
-	if m.QF > 0 {
-		for i, a := range Arrangements {
-			if g, ok := inSituKoA(a, m.BloodSideFlow(), m.QD, central.dd); ok && g > 0 && central.reach[i] && central.koa[i] > 0 {
-				hint.ratio[i] = central.koa[i] / g
-				// dK/dKoA = (K/KoA)/(d ln KoA/d ln K) at the centre.
-				if s := koaSensitivity(a, m.model(), central.k, central.dd, central.koa[i]); s > 0 {
-					hint.slope[i] = central.k / central.koa[i] / s
-				}
-			}
-		}
-	}
+	hint := newDrawHint(m, central)
+	quick := hint
+	quick.quick = true
 	rng := rand.New(rand.NewPCG(o.Seed, rngStream))
 	var draws [4][]float64
 	for j := range draws {
@@ -163,7 +154,7 @@ func propagate(m Measurement, o CheckOptions) Uncertainty {
 		for k, v := range values {
 			*v += half[k] * (2*rng.Float64() - 1)
 		}
-		for j, y := range outputs(solve(d, hint)) {
+		for j, y := range outputs(solve(d, quick)) {
 			draws[j][i] = y
 		}
 	}

@@ -93,6 +93,11 @@ func TestUncertaintyMonteCarloMatchesLinear(t *testing.T) {
 		{core.Countercurrent, core.Operating{QB: 250, QD: 700, KoA: 600, CBi: 40}, 0.01, 0},
 		{core.Countercurrent, core.Operating{QB: 400, QD: 500, KoA: 1000, CBi: 100}, 0, 0.01},
 		{core.Cocurrent, core.Operating{QB: 300, QD: 500, KoA: 300, CBi: 100}, 0.005, 0.005},
+		// With ultrafiltration, where each draw inverts the
+		// ultrafiltration model (drawHint, drawRules).
+		{core.Countercurrent, core.Operating{QB: 300, QD: 500, KoA: 800, CBi: 100, Filtration: core.Filtration{QF: 10, Sieving: 1}}, 0.005, 0.005},
+		{core.Countercurrent, core.Operating{QB: 250, QD: 800, KoA: 700, CBi: 80, CDi: 2, Filtration: core.Filtration{QF: 30, Sieving: 0.8}}, 0.01, 0.005},
+		{core.Cocurrent, core.Operating{QB: 300, QD: 500, KoA: 300, CBi: 100, Filtration: core.Filtration{QF: 20, Sieving: 1}}, 0.005, 0.005},
 	} {
 		m := measured(t, c.a, c.op)
 		r := check(t, m, core.CheckOptions{ConcentrationUncertainty: c.u, FlowUncertainty: c.q, Seed: 3})

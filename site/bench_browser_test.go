@@ -117,3 +117,64 @@ func quantile(xs []float64, q float64) float64 {
 	i := int(q*float64(len(s)) + 0.5)
 	return s[min(max(i-1, 0), len(s)-1)]
 }
+
+// TestBenchBrowserCheck: a keystroke in the Field checks view's clearance
+// test with the demo's QF 10 mL/min and uncertainty on, CPU throttled 4x.
+// (1) Input to updated results: a new CBo, the input event, style and
+// layout of the results forced; the 95 % ranges are then pending
+// (check-view.js asks for them later). (2) The ranges: the pending
+// calculation run at once (the handle's snapshot flushes it) and the
+// results laid out again. (3) The calls alone (JSON.stringify,
+// clearkit.check, JSON.parse): without the uncertainty, as the keystroke
+// makes it, and the whole check, as one call per keystroke made it before.
+func TestBenchBrowserCheck(t *testing.T) {
+	const n = 40 // timed inputs of each kind, after 10 untimed
+	p := openPage(t, "")
+	p.showView("check")
+	p.settle()
+	if _, err := chromedp.Call(p.ctx, emulation.SetCPUThrottlingRate, emulation.SetCPUThrottlingRateParams{Rate: benchThrottle}); err != nil {
+		t.Fatal(err)
+	}
+	type figures struct{ Keystroke, Ranges, First, Whole []float64 }
+	f := eval[figures](p, fmt.Sprintf(`import('./js/views.js').then(async (m) => {
+		const handle = m.views.get('check');
+		const form = document.getElementById('check-form');
+		const input = document.getElementById('check-cbo');
+		const results = document.getElementById('check-results');
+		const out = { Keystroke: [], Ranges: [], First: [], Whole: [] };
+		const uncertainty = ['concentration_uncertainty_percent', 'concentration_uncertainty_floor', 'flow_uncertainty_percent'];
+		const frame = () => new Promise((r) => requestAnimationFrame(() => setTimeout(r, 0)));
+		for (let i = 0; i < %[1]d + 10; i++) {
+			await frame();
+			input.value = String(18 + (i %% 20) / 10);
+			let t0 = performance.now();
+			input.dispatchEvent(new Event('input', { bubbles: true }));
+			results.getBoundingClientRect();
+			const keystroke = performance.now() - t0;
+			if (results.dataset.pending !== 'true') throw new Error('no ranges pending after an input');
+			await frame();
+			t0 = performance.now();
+			handle.snapshot();
+			results.getBoundingClientRect();
+			const ranges = performance.now() - t0;
+			await frame();
+			const request = Object.fromEntries([...form.querySelectorAll('input[name]')].map((e) => [e.name, e.value.trim()]));
+			t0 = performance.now();
+			const whole = JSON.parse(clearkit.check(JSON.stringify(request)));
+			const call = performance.now() - t0;
+			if (!whole.ok || !whole.uncertainty) throw new Error('the whole check gave no uncertainty');
+			for (const f of uncertainty) delete request[f];
+			await frame();
+			t0 = performance.now();
+			JSON.parse(clearkit.check(JSON.stringify(request)));
+			const first = performance.now() - t0;
+			if (i >= 10) { out.Keystroke.push(keystroke); out.Ranges.push(ranges); out.First.push(first); out.Whole.push(call); }
+		}
+		return out;
+	})`, n))
+	fmt.Printf("bench: browser, Chromium headless, CPU throttled %dx, Field checks clearance test, QF 10 mL/min, uncertainty on (%d inputs):\n", benchThrottle, n)
+	fmt.Printf("  keystroke to updated results, ranges pending  median %6.2f ms  p95 %6.2f ms\n", quantile(f.Keystroke, 0.5), quantile(f.Keystroke, 0.95))
+	fmt.Printf("    of which the call without the uncertainty    median %6.2f ms  p95 %6.2f ms  (stringify, bridge, parse)\n", quantile(f.First, 0.5), quantile(f.First, 0.95))
+	fmt.Printf("  the 95 %% ranges computed and shown            median %6.2f ms  p95 %6.2f ms\n", quantile(f.Ranges, 0.5), quantile(f.Ranges, 0.95))
+	fmt.Printf("    the whole check in one call (as before)      median %6.2f ms  p95 %6.2f ms\n", quantile(f.Whole, 0.5), quantile(f.Whole, 0.95))
+}

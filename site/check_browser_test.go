@@ -133,6 +133,7 @@ func openChecks(t *testing.T) *page {
 	t.Helper()
 	p := openPage(t, "")
 	p.showView("check")
+	p.settle()
 	return p
 }
 
@@ -411,4 +412,65 @@ func TestCheckViewSavedRecord(t *testing.T) {
 		t.Errorf("record check %q, want same", got)
 	}
 	p.screenshot("check-record-opened")
+}
+
+// A keystroke in the clearance test computes the check at once without
+// its uncertainty (one call) and the 95 % ranges a moment later (README,
+// Field checks): right after the input the numbers are the API's answer
+// to the request without the uncertainty fields and the ranges show an
+// ellipsis; once settled, every output is the whole request's answer. A
+// snapshot taken while the ranges are pending holds the whole answer.
+func TestCheckViewIntervalLater(t *testing.T) {
+	p := openChecks(t)
+	at := func(m map[string]any, path string) any { v, _ := valueAt(m, path); return v }
+	type shown struct {
+		Pending, Clearance, Range, Snapshot string
+	}
+	typeAndLook := func(snapshot bool) shown {
+		return eval[shown](p, fmt.Sprintf(`import('./js/views.js').then((m) => {
+			const input = document.getElementById('check-cbo');
+			input.value = '20';
+			input.dispatchEvent(new Event('input', { bubbles: true }));
+			const results = document.getElementById('check-results');
+			const look = {
+				Pending: results.dataset.pending || '',
+				Clearance: results.querySelector('[data-out="clearance"]').dataset.value,
+				Range: results.querySelector('[data-out="uncertainty.koa_countercurrent.low"]').textContent,
+				Snapshot: '',
+			};
+			if (%t) look.Snapshot = JSON.stringify(m.views.get('check').snapshot().result.clearance.uncertainty);
+			return look;
+		})`, snapshot))
+	}
+	req := map[string]string{}
+	for k, v := range demoClearance {
+		req[k] = v
+	}
+	req["cbo"] = "20"
+	whole := native(t, api.Check, req)
+	for _, f := range []string{"concentration_uncertainty_percent", "concentration_uncertainty_floor", "flow_uncertainty_percent"} {
+		delete(req, f)
+	}
+	first := native(t, api.Check, req)
+	if first["uncertainty"] != nil || at(whole, "uncertainty.koa_countercurrent.low") == nil {
+		t.Fatalf("native: uncertainty %v without the fields, %v with them", first["uncertainty"], whole["uncertainty"])
+	}
+	got := typeAndLook(false)
+	if got.Pending != "true" || got.Range != "…" || got.Clearance != strconv.FormatFloat(first["clearance"].(float64), 'g', -1, 64) {
+		t.Errorf("right after the input: pending %q, KoA range %q, clearance %s; want true, an ellipsis, %v", got.Pending, got.Range, got.Clearance, first["clearance"])
+	}
+	p.settle()
+	wantShown(t, p, "#check-results", whole)
+	wantFindings(t, p, "#check-results", whole)
+	got = typeAndLook(true)
+	var u map[string]any
+	if err := json.Unmarshal([]byte(got.Snapshot), &u); err != nil || u == nil {
+		t.Fatalf("snapshot while pending: uncertainty %s (%v), want the whole answer's", got.Snapshot, err)
+	}
+	if low := at(u, "koa_countercurrent.low"); low != at(whole, "uncertainty.koa_countercurrent.low") {
+		t.Errorf("snapshot while pending: KoA low %v, want %v", low, at(whole, "uncertainty.koa_countercurrent.low"))
+	}
+	if pending := eval[string](p, `document.getElementById('check-results').dataset.pending || ''`); pending != "" {
+		t.Errorf("after the snapshot the results are still pending")
+	}
 }

@@ -261,7 +261,8 @@ func evalTimeout[T any](p *page, expr string, d time.Duration) T {
 }
 
 // typeInto replaces the text of the input matched by sel with text, typed
-// key by key as a person would (each key fires an input event).
+// key by key as a person would (each key fires an input event), and waits
+// for the results to settle.
 func (p *page) typeInto(sel, text string) {
 	p.t.Helper()
 	p.do(chromedp.Focus(chromedp.CSS(sel)),
@@ -270,6 +271,14 @@ func (p *page) typeInto(sel, text string) {
 	if text != "" {
 		p.do(chromedp.SendKeys(chromedp.CSS(sel), text))
 	}
+	p.settle()
+}
+
+// settle waits until no results are pending: the Field checks view shows
+// a check's uncertainty a moment after the rest (check-view.js).
+func (p *page) settle() {
+	p.t.Helper()
+	p.waitFor(`!document.querySelector('[data-pending]')`, 10*time.Second)
 }
 
 // screenshot writes a PNG of the whole page to out/screenshots/NAME.png at

@@ -100,20 +100,40 @@ function showNulls(root, data) {
   }
 }
 
+// The clearance test's uncertainty fields. With ultrafiltration each of
+// the 4000 Monte Carlo draws inverts the model (tens of milliseconds on a
+// slow tablet), so the view asks for the check without them first and for
+// the intervals LATER_MS after the last input (README, Field checks).
+const UNCERTAINTY_FIELDS = ['concentration_uncertainty_percent', 'concentration_uncertainty_floor', 'flow_uncertainty_percent'];
+const LATER_MS = 250;
+
+// withoutUncertainty returns the check request without its uncertainty
+// fields, or null when none is filled in (one call does it all).
+function withoutUncertainty(request) {
+  if (!UNCERTAINTY_FIELDS.some((f) => (request[f] ?? '') !== '')) return null;
+  const first = { ...request };
+  for (const f of UNCERTAINTY_FIELDS) delete first[f];
+  return first;
+}
+
 // A calculation bound to one form: on every input it asks the API and
 // shows the answer, or the error beside its field with the results marked
 // stale. request(form) builds the request; render(results, response)
-// shows the rest.
-function bindCalculation(engine, name, form, results, request, render) {
-  const state = { last: null };
-  state.update = () => {
-    const response = engine.call(name, request());
+// shows the rest. With split, a request that split(request) cuts down (to
+// leave out slow work) is answered in two calls: the cut one at once, the
+// whole one LATER_MS after the last input, or at flush(), which
+// snapshot() calls so that a record always holds the whole answer. Until
+// then the results carry data-pending and the outputs of the left-out
+// part show an ellipsis.
+function bindCalculation(engine, name, form, results, request, render, split = () => null) {
+  const state = { last: null, pending: null, timer: 0 };
+  const show = (response) => {
     if (!response.ok) {
       showError(form, response.error);
       results.classList.add('stale');
       results.dataset.state = 'error';
       state.last = null;
-      return;
+      return false;
     }
     showError(form, null);
     results.classList.remove('stale');
@@ -122,6 +142,28 @@ function bindCalculation(engine, name, form, results, request, render) {
     renderOutputs(results, response);
     showNulls(results, response);
     render(response);
+    return true;
+  };
+  const settle = () => {
+    clearTimeout(state.timer);
+    state.pending = null;
+    delete results.dataset.pending;
+  };
+  state.flush = () => {
+    const whole = state.pending;
+    if (!whole) return;
+    settle();
+    show(engine.call(name, whole));
+  };
+  state.update = () => {
+    settle();
+    const whole = request();
+    const first = split(whole);
+    if (!show(engine.call(name, first ?? whole)) || !first) return;
+    state.pending = whole;
+    results.dataset.pending = 'true';
+    for (const out of results.querySelectorAll('[data-pending-shows] output')) out.textContent = '…';
+    state.timer = setTimeout(state.flush, LATER_MS);
   };
   form.addEventListener('input', state.update);
   form.addEventListener('submit', (event) => event.preventDefault());
@@ -159,7 +201,7 @@ export function mountCheck(root, engine) {
     mark.dataset.level = r.mass_balance_ok ? 'pass' : 'fail';
     showFindings(checkResults.querySelector('.findings'), r.findings);
     checkResults.querySelector('#check-blood-note').hidden = !r.input.blood;
-  });
+  }, withoutUncertainty);
 
   // Conductivity.
   const condForm = root.querySelector('#cond-form');
@@ -244,7 +286,10 @@ export function mountCheck(root, engine) {
     timed: () => Object.fromEntries(Object.entries(timed).map(([c, e]) => [c, { measure: e.measure, ...readForm(e.form) }])),
   };
   const resultOf = {
-    clearance: () => (clearance.last ? { clearance: clearance.last } : null),
+    clearance: () => {
+      clearance.flush();
+      return clearance.last ? { clearance: clearance.last } : null;
+    },
     conductivity: () => (conductivity.last ? { conductivity: conductivity.last } : null),
     timed: () => (timed.blood.calc.last || timed.dialysate.calc.last
       ? { blood: timed.blood.calc.last, dialysate: timed.dialysate.calc.last }
