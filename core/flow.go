@@ -39,7 +39,7 @@ func ParseArrangement(field, s string) (Arrangement, error) {
 // computed from the difference of the flows so that it keeps full relative
 // accuracy when QB and QD are nearly equal.
 func capacities(qb, qd float64) (cmin, cmax, oneMinusCr float64) {
-	cmin, cmax = math.Min(qb, qd), math.Max(qb, qd)
+	cmin, cmax = min(qb, qd), max(qb, qd)
 	return cmin, cmax, (cmax - cmin) / cmax
 }
 
@@ -75,7 +75,7 @@ func Effectiveness(a Arrangement, qb, qd, koa float64) float64 {
 	// at Cr = 1 and reduces there to NTU/(1+NTU). Near saturation the
 	// quotient can round to just above 1; the ceiling is exact.
 	t := ntu * phi(ntu*oneMinusCr)
-	return math.Min(1, t/(1+cr*t))
+	return min(1, t/(1+cr*t))
 }
 
 // phi returns (1 - e^-x)/x for x >= 0, with phi(0) = 1.
@@ -89,15 +89,40 @@ func phi(x float64) float64 {
 // Dialysance returns D = eps * min(QB, QD) in mL/min: the solute transfer
 // rate per unit of inlet concentration difference (CBi - CDi).
 func Dialysance(a Arrangement, qb, qd, koa float64) float64 {
-	return Effectiveness(a, qb, qd, koa) * math.Min(qb, qd)
+	return Effectiveness(a, qb, qd, koa) * min(qb, qd)
 }
 
 // Ceiling returns the dialysance the arrangement approaches as KoA grows
 // without bound: min(QB, QD) counter-current, QB QD/(QB+QD) co-current.
 // No filter can reach or pass it at these flows.
 func Ceiling(a Arrangement, qb, qd float64) float64 {
-	// Computed as Dialysance at KoA = +Inf, that is (1/(1+Cr)) Cmin
-	// co-current (QB QD/(QB+QD) without overflow of QB*QD), so that the
-	// same roundings apply and Dialysance never exceeds it at finite KoA.
-	return Dialysance(a, qb, qd, math.Inf(1))
+	// The same roundings as Dialysance at KoA = +Inf: 1 x Cmin
+	// counter-current, (1/(1+Cr)) Cmin co-current (QB QD/(QB+QD) without
+	// overflow of QB*QD), so that Dialysance never exceeds it at finite KoA.
+	cmin, cmax := min(qb, qd), max(qb, qd)
+	if a == Cocurrent {
+		return 1 / (1 + cmin/cmax) * cmin
+	}
+	return cmin
+}
+
+// pair is the dialysance of both arrangements at one point, with their
+// ceilings: the same values, rounding for rounding, as Dialysance and
+// Ceiling give one at a time, computed with the capacities shared.
+// The chart series call it at every point; under WebAssembly it is about
+// twice as fast as the four calls.
+type pair struct{ counter, co, counterCeiling, coCeiling float64 }
+
+func dialysancePair(qb, qd, koa float64) pair {
+	cmin, cmax, oneMinusCr := capacities(qb, qd)
+	ntu := koa / cmin
+	cr := cmin / cmax
+	co := 1 / (1 + cr)
+	p := pair{counter: cmin, co: co * cmin, counterCeiling: cmin, coCeiling: co * cmin}
+	if !math.IsInf(ntu, 1) {
+		t := ntu * phi(ntu*oneMinusCr)
+		p.counter = min(1, t/(1+cr*t)) * cmin
+		p.co = -math.Expm1(-ntu*(1+cr)) / (1 + cr) * cmin
+	}
+	return p
 }

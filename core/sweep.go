@@ -41,7 +41,25 @@ type Sweeps struct {
 	QB  Series `json:"qb"`
 	QD  Series `json:"qd"`
 	KoA Series `json:"koa"`
+	// packed is every series above end to end, in the order of
+	// PackedSeries: the slices above are windows of it.
+	packed []float64
 }
+
+// PackedSeries names the series of Sweeps in the order Packed lays them
+// end to end, as "axis.member" with the JSON names.
+var PackedSeries = [...]string{
+	"qb.x", "qb.countercurrent", "qb.cocurrent", "qb.countercurrent_ceiling", "qb.cocurrent_ceiling",
+	"qd.x", "qd.countercurrent", "qd.cocurrent", "qd.countercurrent_ceiling", "qd.cocurrent_ceiling",
+	"koa.x", "koa.countercurrent", "koa.cocurrent", "koa.countercurrent_ceiling", "koa.cocurrent_ceiling",
+}
+
+// Packed returns every series end to end in the order of PackedSeries,
+// Points() values each. It shares memory with s.
+func (s Sweeps) Packed() []float64 { return s.packed }
+
+// Points returns the number of points of each series.
+func (s Sweeps) Points() int { return len(s.QB.X) }
 
 // Sweep computes the chart series around op.
 func Sweep(op Operating, spec SweepSpec) (Sweeps, error) {
@@ -71,12 +89,30 @@ func Sweep(op Operating, spec SweepSpec) (Sweeps, error) {
 	if err != nil {
 		return Sweeps{}, err
 	}
-	return Sweeps{
-		QB:  series(n, qb, func(x float64) Operating { o := op; o.QB = x; return o }),
-		QD:  series(n, qd, func(x float64) Operating { o := op; o.QD = x; return o }),
-		KoA: series(n, koa, func(x float64) Operating { o := op; o.KoA = x; return o }),
-	}, nil
+	s := Sweeps{packed: make([]float64, len(PackedSeries)*n)}
+	window := s.packed
+	for _, axis := range []struct {
+		series *Series
+		r      Range
+		swept  sweptVariable
+	}{{&s.QB, qb, sweptQB}, {&s.QD, qd, sweptQD}, {&s.KoA, koa, sweptKoA}} {
+		ser := axis.series
+		for _, member := range []*[]float64{&ser.X, &ser.Countercurrent, &ser.Cocurrent, &ser.CountercurrentCeiling, &ser.CocurrentCeiling} {
+			*member, window = window[:n:n], window[n:]
+		}
+		series(ser, axis.r, axis.swept, op)
+	}
+	return s, nil
 }
+
+// sweptVariable is the variable a series sweeps.
+type sweptVariable int
+
+const (
+	sweptQB sweptVariable = iota
+	sweptQD
+	sweptKoA
+)
 
 func sweepRange(field string, r *Range, def Range, check func(string, float64) error) (Range, error) {
 	if r == nil {
@@ -94,27 +130,64 @@ func sweepRange(field string, r *Range, def Range, check func(string, float64) e
 	return *r, nil
 }
 
-// series evaluates both arrangements at n equally spaced points of r.
-func series(n int, r Range, at func(float64) Operating) Series {
-	s := Series{
-		X:                     make([]float64, n),
-		Countercurrent:        make([]float64, n),
-		Cocurrent:             make([]float64, n),
-		CountercurrentCeiling: make([]float64, n),
-		CocurrentCeiling:      make([]float64, n),
-	}
+// series fills s (its slices already sized) with both arrangements at
+// equally spaced points of r, the swept variable replaced in op.
+func series(s *Series, r Range, v sweptVariable, op Operating) {
+	n := len(s.X)
 	step := (r.Max - r.Min) / float64(n-1)
+	if op.QF != 0 {
+		for i := range n {
+			x := r.Min + float64(i)*step
+			if i == n-1 {
+				x = r.Max
+			}
+			o := op
+			switch v {
+			case sweptQB:
+				o.QB = x
+			case sweptQD:
+				o.QD = x
+			default:
+				o.KoA = x
+			}
+			o = o.model()
+			s.X[i] = x
+			s.Countercurrent[i], s.CountercurrentCeiling[i] = clearanceAt(Countercurrent, o)
+			s.Cocurrent[i], s.CocurrentCeiling[i] = clearanceAt(Cocurrent, o)
+		}
+		return
+	}
+	// Without ultrafiltration: the closed forms, both arrangements at once
+	// (dialysancePair gives what Dialysance and Ceiling give, rounding for
+	// rounding; the loop above is four times slower under WebAssembly).
+	// QB enters the model as the blood-side flow, as in Operating.model.
+	f := op.drivingFraction()
+	water := 1.0
+	if op.Blood != nil {
+		water = op.Blood.WaterFraction()
+	}
+	qb, qd, koa := op.model().QB, op.QD, op.KoA
 	for i := range n {
 		x := r.Min + float64(i)*step
 		if i == n-1 {
 			x = r.Max
 		}
-		op := at(x).model()
+		switch v {
+		case sweptQB:
+			qb = x
+			if op.Blood != nil {
+				qb = x * water
+			}
+		case sweptQD:
+			qd = x
+		default:
+			koa = x
+		}
+		p := dialysancePair(qb, qd, koa)
 		s.X[i] = x
-		s.Countercurrent[i], s.CountercurrentCeiling[i] = clearanceAt(Countercurrent, op)
-		s.Cocurrent[i], s.CocurrentCeiling[i] = clearanceAt(Cocurrent, op)
+		s.Countercurrent[i], s.CountercurrentCeiling[i] = p.counter*f, p.counterCeiling*f
+		s.Cocurrent[i], s.CocurrentCeiling[i] = p.co*f, p.coCeiling*f
 	}
-	return s
 }
 
 // clearanceAt returns the clearance of arrangement a at op (as the model

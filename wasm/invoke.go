@@ -4,6 +4,7 @@ package main
 
 import (
 	"fmt"
+	"unsafe"
 
 	"github.com/goccy/go-json"
 	"github.com/hack-pad/safejs"
@@ -11,22 +12,42 @@ import (
 	"clearkit/core/api"
 )
 
-// invoke reads the request string from args and runs call, turning a panic
-// into a failed response.
-func invoke(call func([]byte) []byte, args []safejs.Value) (response []byte) {
+// invoke reads the request string from args and runs the entry, turning a
+// panic into a failed response. A second argument, a Uint8Array, asks for
+// the chart series apart from the JSON (api.Entry.Packed): they are
+// copied into it as float64 values, and the response's "packed" member
+// says how many. An entry without series leaves it untouched.
+func invoke(e api.Entry, args []safejs.Value) (response []byte) {
 	defer func() {
 		if r := recover(); r != nil {
 			response = failed(fmt.Sprintf("internal error: %v", r))
 		}
 	}()
-	if len(args) != 1 || args[0].Type() != safejs.TypeString {
-		return failed("call with one argument: the request as a JSON string")
+	if len(args) < 1 || len(args) > 2 || args[0].Type() != safejs.TypeString || len(args) == 2 && args[1].Type() != safejs.TypeObject {
+		return failed("call with the request as a JSON string, and optionally a Uint8Array for the chart series")
 	}
 	request, err := args[0].String()
 	if err != nil {
 		return failed("the request could not be read: " + err.Error())
 	}
-	return call([]byte(request))
+	if len(args) == 1 || e.Packed == nil {
+		return e.Call([]byte(request))
+	}
+	response, series := e.Packed([]byte(request))
+	if len(series) == 0 {
+		return response
+	}
+	// WebAssembly memory is little-endian, as a Float64Array over the
+	// same bytes reads them on every platform the page runs on.
+	raw := unsafe.Slice((*byte)(unsafe.Pointer(&series[0])), 8*len(series))
+	n, err := safejs.CopyBytesToJS(args[1], raw)
+	if err != nil {
+		return failed("the second argument must be a Uint8Array for the chart series")
+	}
+	if n < len(raw) {
+		return failed(fmt.Sprintf("the chart series need %d bytes; the Uint8Array given holds %d", len(raw), n))
+	}
+	return response
 }
 
 // failed encodes a failure of the request as a whole.

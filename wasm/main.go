@@ -25,7 +25,8 @@ func main() {
 // floor that ./build.sh bench compares every call with.
 var echo = api.Entry{Name: "echo", Call: func(request []byte) []byte { return request }}
 
-// publish sets globalThis[name] = {version, NAME(request) for each entry}.
+// publish sets globalThis[name] = {version, packedBytes, NAME(request[, series])
+// for each entry}.
 func publish(name string, entries []api.Entry) error {
 	object, err := safejs.Global().Get("Object")
 	if err != nil {
@@ -38,8 +39,12 @@ func publish(name string, entries []api.Entry) error {
 	if err := ck.Set("version", api.Version); err != nil {
 		return err
 	}
+	// The size of a Uint8Array that holds the chart series of any answer.
+	if err := ck.Set("packedBytes", api.MaxPackedBytes); err != nil {
+		return err
+	}
 	for _, e := range entries {
-		fn, err := safejs.FuncOf(handler(e.Call))
+		fn, err := safejs.FuncOf(handler(e))
 		if err != nil {
 			return err
 		}
@@ -50,9 +55,10 @@ func publish(name string, entries []api.Entry) error {
 	return safejs.Global().Set(name, ck)
 }
 
-// handler adapts an API call to a JavaScript function of one string.
-func handler(call func([]byte) []byte) func(safejs.Value, []safejs.Value) any {
+// handler adapts an API entry to a JavaScript function of the request
+// string (and, optionally, a Uint8Array for the chart series; see invoke).
+func handler(e api.Entry) func(safejs.Value, []safejs.Value) any {
 	return func(_ safejs.Value, args []safejs.Value) any {
-		return string(invoke(call, args))
+		return string(invoke(e, args))
 	}
 }

@@ -2,6 +2,7 @@ package api
 
 import (
 	"fmt"
+	"math"
 
 	"clearkit/core"
 )
@@ -32,38 +33,72 @@ type CompareResponse struct {
 	Input core.Operating `json:"input"` // the values used, defaults filled in
 	core.Comparison
 	Sweeps *core.Sweeps `json:"sweeps,omitempty"`
+	// Packed takes the place of Sweeps in an answer of ComparePacked.
+	Packed *Packing `json:"packed,omitempty"`
 }
 
 // Compare answers a CompareRequest.
 func Compare(request []byte) []byte {
+	response, _ := compare(request, false)
+	return response
+}
+
+// ComparePacked answers a CompareRequest like Compare, with the chart
+// series, when the request asks for them, returned apart from the JSON in
+// the order of core.PackedSeries (see Entry.Packed).
+func ComparePacked(request []byte) ([]byte, []float64) {
+	return compare(request, true)
+}
+
+func compare(request []byte, packed bool) ([]byte, []float64) {
 	var req CompareRequest
 	if err := decode(request, &req); err != nil {
-		return failure(err)
+		return failure(err), nil
 	}
 	op, err := operating(req.QB, req.QD, req.KoA, req.CBi, req.CDi)
 	if err != nil {
-		return failure(err)
+		return failure(err), nil
 	}
 	if err := req.Conditions.apply(&op); err != nil {
-		return failure(err)
+		return failure(err), nil
 	}
 	c, err := core.Compare(op)
 	if err != nil {
-		return failure(err)
+		return failure(err), nil
 	}
 	resp := CompareResponse{OK: true, Input: op, Comparison: c}
-	if req.Sweep != nil {
-		spec, err := req.Sweep.spec()
-		if err != nil {
-			return failure(err)
-		}
-		s, err := core.Sweep(op, spec)
-		if err != nil {
-			return failure(err)
-		}
-		resp.Sweeps = &s
+	if req.Sweep == nil {
+		return respond(&resp, nil), nil
 	}
-	return respond(&resp, nil)
+	spec, err := req.Sweep.spec()
+	if err != nil {
+		return failure(err), nil
+	}
+	s, err := core.Sweep(op, spec)
+	if err != nil {
+		return failure(err), nil
+	}
+	if !packed {
+		resp.Sweeps = &s
+		return respond(&resp, nil), nil
+	}
+	resp.Packed = &Packing{Points: s.Points(), Series: packedSeries}
+	if !finite(s.Packed()) {
+		// What respond would refuse in the JSON (see respond).
+		return failure(fieldErr("", "internal error: result could not be encoded")), nil
+	}
+	return respond(&resp, nil), s.Packed()
+}
+
+var packedSeries = core.PackedSeries[:]
+
+func finite(xs []float64) bool {
+	for _, x := range xs {
+		if math.IsInf(x, 0) || math.IsNaN(x) {
+			return false
+		}
+	}
+	return true
 }
 
 // operating reads the fields of an operating point.

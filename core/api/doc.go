@@ -19,6 +19,8 @@
 // The package is pure Go (no syscall/js) and is tested and fuzzed natively.
 package api
 
+import "clearkit/core"
+
 // Version is the build's version, set by build.sh with -ldflags -X.
 var Version = "dev"
 
@@ -26,14 +28,33 @@ var Version = "dev"
 type Entry struct {
 	Name string
 	Call func(request []byte) []byte
+	// Packed, for an entry whose answer can carry chart series, answers
+	// like Call but leaves the series out of the JSON: it returns them as
+	// float64 values end to end, and the response's "packed" member names
+	// them in that order (see Packing). The bridge uses it when the page
+	// passes a buffer for them, which spares writing and parsing some 1500
+	// numbers as text on every input. Nil for the other entries.
+	Packed func(request []byte) (response []byte, series []float64)
+}
+
+// MaxPackedBytes is the most bytes the packed series of any answer take:
+// every series of core.PackedSeries at core.MaxSweepPoints, 8 bytes a value.
+const MaxPackedBytes = 8 * len(core.PackedSeries) * core.MaxSweepPoints
+
+// Packing is the "packed" member of a response whose chart series were
+// returned apart from the JSON: Series names them, as "axis.member" with
+// their JSON names, in the order they lie end to end, Points values each.
+type Packing struct {
+	Points int      `json:"points"`
+	Series []string `json:"series"`
 }
 
 // Entries lists every calculation the bridge exposes, in the order the
 // README documents them.
 var Entries = []Entry{
-	{"compare", Compare},
-	{"size", Size},
-	{"check", Check},
-	{"dialysance", Dialysance},
-	{"flowcheck", FlowCheck},
+	{Name: "compare", Call: Compare, Packed: ComparePacked},
+	{Name: "size", Call: Size},
+	{Name: "check", Call: Check},
+	{Name: "dialysance", Call: Dialysance},
+	{Name: "flowcheck", Call: FlowCheck},
 }

@@ -10,7 +10,8 @@ import (
 // argument picks the entry, so new entries are fuzzed without a change
 // here) and checks the response contract: no panic, valid JSON, a failure
 // naming a field or the request, a success with finite numbers within
-// physical bounds (checkResponse). Seeds: the catalogue of bad input and
+// physical bounds (checkResponse), and for an entry with a packed answer
+// the same answer with its series apart (checkPacked). Seeds: the catalogue of bad input and
 // the valid examples (testdata/bad-input.json), and the failures found so
 // far (testdata/fuzz/FuzzAPI). ./build.sh test runs it for a few seconds;
 // see DEVELOPERS.md for longer runs.
@@ -37,6 +38,10 @@ func FuzzAPI(f *testing.F) {
 	}
 	f.Fuzz(func(t *testing.T, entry uint8, request []byte) {
 		e := api.Entries[int(entry)%len(api.Entries)]
-		checkResponse(t, e, request, e.Call(request))
+		full := e.Call(request)
+		checkResponse(t, e, request, full)
+		if e.Packed != nil {
+			checkPacked(t, e, request, full)
+		}
 	})
 }

@@ -75,7 +75,7 @@ func TestPropertyCompareMatchesCore(t *testing.T) {
 			if err != nil {
 				t.Fatal(err)
 			}
-			if got.Sweeps == nil || !reflect.DeepEqual(*got.Sweeps, s) {
+			if got.Sweeps == nil || !reflect.DeepEqual([]core.Series{got.Sweeps.QB, got.Sweeps.QD, got.Sweeps.KoA}, []core.Series{s.QB, s.QD, s.KoA}) {
 				t.Errorf("Compare(%s) sweeps differ from core.Sweep", req)
 			}
 		}

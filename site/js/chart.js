@@ -45,7 +45,7 @@ export function drawChart(svg, spec) {
   const plotH = height - top - bottom;
   const xs = spec.x;
   const ceilings = spec.ceilings ?? [];
-  const all = [...spec.series, ...ceilings].flatMap((s) => s.values);
+  const all = [...spec.series, ...ceilings].flatMap((s) => Array.from(s.values)); // values: any array-like
   const [xMin, xMax] = spec.xRange ?? [xs[0], xs[xs.length - 1]];
   const yTicks = axisTicks(spec.yMax ?? Math.max(...all, 1) * 1.02);
   const yMax = yTicks[yTicks.length - 1];
@@ -65,7 +65,7 @@ export function drawChart(svg, spec) {
   svg.append(el('text', { x: left + plotW / 2, y: height - 6, 'text-anchor': 'middle' }, spec.xLabel));
   svg.append(el('text', { x: 14, y: top + plotH / 2, 'text-anchor': 'middle', transform: `rotate(-90 14 ${top + plotH / 2})` }, spec.yLabel));
 
-  const path = (values, x = xs) => values.map((y, i) => `${i ? 'L' : 'M'}${px(x[i]).toFixed(1)} ${py(Math.min(y, yMax)).toFixed(1)}`).join('');
+  const path = (values, x = xs) => Array.from(values, (y, i) => `${i ? 'L' : 'M'}${px(x[i]).toFixed(1)} ${py(Math.min(y, yMax)).toFixed(1)}`).join('');
   const labels = [];
   for (const c of ceilings) {
     svg.append(el('path', { class: 'ceiling', d: path(c.values) }));

@@ -24,16 +24,39 @@ export async function loadEngine(url = 'clearkit.wasm') {
   if (!api) {
     throw new Error('the calculation module did not start');
   }
+  // The module writes chart series here as float64 values rather than as
+  // JSON text (see unpack); one buffer serves every call.
+  const series = new Uint8Array(api.packedBytes);
   return {
     version: api.version,
     // call runs one calculation: request is a plain object, the answer is
-    // the parsed response ({ok: true, ...} or {ok: false, error}).
+    // the parsed response ({ok: true, ...} or {ok: false, error}), with
+    // any chart series as Float64Arrays.
     call(name, request) {
       const fn = api[name];
       if (typeof fn !== 'function') {
         throw new Error(`the calculation module has no "${name}"`);
       }
-      return JSON.parse(fn(JSON.stringify(request)));
+      return unpack(JSON.parse(fn(JSON.stringify(request), series)), series);
     },
   };
+}
+
+// unpack puts the chart series the module wrote into bytes back where the
+// JSON answer would have held them: answer.packed = {points, series:
+// ["qb.x", "qb.countercurrent", ...]} names them in the order they lie
+// end to end, and each becomes answer.sweeps.qb.x and so on, a
+// Float64Array of its own copy of the values (the buffer is reused).
+export function unpack(answer, bytes) {
+  if (!answer.packed) return answer;
+  const { points, series } = answer.packed;
+  const values = new Float64Array(bytes.buffer.slice(bytes.byteOffset, bytes.byteOffset + 8 * points * series.length));
+  const sweeps = {};
+  series.forEach((name, k) => {
+    const [axis, member] = name.split('.');
+    (sweeps[axis] ??= {})[member] = values.subarray(k * points, (k + 1) * points);
+  });
+  delete answer.packed;
+  answer.sweeps = sweeps;
+  return answer;
 }

@@ -12,6 +12,7 @@
 import { readFileSync, statSync } from 'node:fs';
 import { pathToFileURL } from 'node:url';
 import * as peer from './peer.mjs';
+import { unpack } from '../../site/js/engine.js';
 
 // With --check it only checks that the peer gives the module's numbers
 // (./build.sh test does that, so that the peer follows the module).
@@ -57,8 +58,13 @@ function agree(a, b, path = '') {
   }
   if (a !== b) throw new Error(`peer ${path} = ${a}, module ${b}`);
 }
+// The page's call (engine.js): the request, and a buffer for the chart
+// series, which the module writes there as float64 values.
+const seriesBuffer = new Uint8Array(ck.packedBytes);
+const pageCall = (request) => unpack(JSON.parse(ck.compare(JSON.stringify(request), seriesBuffer)), seriesBuffer);
 for (const req of [form, { ...form, sweep: {} }, { qb: 450, qd: '700,5', koa: 1300, cbi: 12, cdi: 1.5, sweep: {} }, { qb: 400, qd: 400, koa: 0 }]) {
   agree(peer.compare(req), JSON.parse(ck.compare(JSON.stringify(req))));
+  agree(peer.compare(req), pageCall(req));
 }
 for (const req of [{ qb: -1, qd: 500, koa: 800 }, { qb: 300, qd: 500 }]) {
   const [p, m] = [peer.compare(req), JSON.parse(ck.compare(JSON.stringify(req)))];
@@ -101,15 +107,18 @@ function measure(cases) {
 
 const size = (x) => (typeof x === 'string' ? x.length : 1);
 const response = ck.compare(interactionRequest);
+const packedResponse = ck.compare(interactionRequest, seriesBuffer);
 const t = measure({
   peerCompare: () => size(peer.compare(form).countercurrent),
   peerInteraction: () => size(peer.compare({ ...form, sweep: {} }).sweeps.qb.x),
   empty: () => size(ck.echo(compareRequest)),
   compare: () => size(ck.compare(compareRequest)),
   compareEngine: () => size(JSON.parse(ck.compare(JSON.stringify(form))).countercurrent),
-  interactionBridge: () => size(ck.compare(interactionRequest)),
-  interaction: () => size(JSON.parse(ck.compare(JSON.stringify({ ...form, sweep: {} }))).sweeps),
-  parse: () => size(JSON.parse(response).sweeps),
+  interactionBridge: () => size(ck.compare(interactionRequest, seriesBuffer)),
+  interaction: () => size(pageCall({ ...form, sweep: {} }).sweeps),
+  unpack: () => size(unpack(JSON.parse(packedResponse), seriesBuffer).sweeps),
+  interactionJSON: () => size(JSON.parse(ck.compare(JSON.stringify({ ...form, sweep: {} }))).sweeps),
+  parseJSON: () => size(JSON.parse(response).sweeps),
 });
 
 const us = (x) => `${x.toFixed(x < 10 ? 2 : 1)} us`.padStart(10);
@@ -121,8 +130,11 @@ console.log(`  peer interaction (compare + the 3 chart sweeps, 101 points)     $
 console.log(`  (a) empty bridge call, clearkit.echo(string)                    ${us(t.empty)}  ${ratio(t.empty / t.peerCompare)} the peer's compare`);
 console.log(`  (b) clearkit.compare, JSON string in and out                    ${us(t.compare)}  ${ratio(t.compare / t.empty)} the empty call (target <= 1.3x)`);
 console.log(`      the same with JSON.stringify and JSON.parse (engine.call)   ${us(t.compareEngine)}  ${ratio(t.compareEngine / t.empty)} the empty call`);
-console.log(`  (c) interaction, one call with sweeps, stringify and parse      ${us(t.interaction)}  ${ratio(t.interaction / t.peerInteraction)} the peer (target <= 3x)`);
-console.log(`      of which the bridge call alone (${response.length} bytes back)       ${us(t.interactionBridge)}  ${ratio(t.interactionBridge / t.peerInteraction)} the peer`);
-console.log(`      and JSON.parse of the response alone                        ${us(t.parse)}`);
+console.log(`  (c) interaction as the page makes it (engine.js): stringify, one  ${us(t.interaction)}  ${ratio(t.interaction / t.peerInteraction)} the peer (target <= 3x)`);
+console.log(`      call with the series written to a buffer, parse, unpack`);
+console.log(`      of which the bridge call alone (${packedResponse.length} bytes of JSON back) ${us(t.interactionBridge)}  ${ratio(t.interactionBridge / t.peerInteraction)} the peer`);
+console.log(`      and JSON.parse with unpack alone                            ${us(t.unpack)}`);
+console.log(`      the same interaction with the series as JSON text           ${us(t.interactionJSON)}  ${ratio(t.interactionJSON / t.peerInteraction)} the peer`);
+console.log(`      of which JSON.parse of the ${response.length}-byte response alone       ${us(t.parseJSON)}`);
 if (sink === 0) console.log('(no results)');
 process.exit(0); // Go's main never returns
