@@ -1,9 +1,6 @@
 package core
 
-import (
-	"fmt"
-	"math"
-)
+import "math"
 
 // Defaults of a clearance check.
 const (
@@ -625,7 +622,7 @@ func ptr(v float64) *float64 { return &v }
 func judge(m Measurement, o CheckOptions, r CheckResult) (string, []Finding) {
 	var out []Finding
 	add := func(level, code, format string, args ...any) {
-		out = append(out, Finding{Level: level, Code: code, Text: fmt.Sprintf(format, args...)})
+		out = append(out, Finding{Level: level, Code: code, Text: sentence(format, args...)})
 	}
 	pct := func(x float64) float64 { return 100 * x }
 	if r.MassBalanceOK {

@@ -1,7 +1,6 @@
 package core
 
 import (
-	"fmt"
 	"math"
 	"strconv"
 )
@@ -194,7 +193,7 @@ func judgeDialysance(d DialysanceResult, st DialysanceSetting) (string, []Findin
 	}
 	var out []Finding
 	add := func(level, code, format string, args ...any) {
-		out = append(out, Finding{Level: level, Code: code, Text: fmt.Sprintf(format, args...)})
+		out = append(out, Finding{Level: level, Code: code, Text: sentence(format, args...)})
 	}
 	verdict := "not_rated"
 	switch {

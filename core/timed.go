@@ -1,9 +1,6 @@
 package core
 
-import (
-	"fmt"
-	"math"
-)
+import "math"
 
 // Bounds of a timed collection.
 const (
@@ -70,14 +67,14 @@ func TimedFlow(c Collection) (FlowCheck, error) {
 	r.Within = math.Abs(r.Deviation) <= c.Tolerance
 	what := map[string]string{"blood": "The blood pump", "dialysate": "The dialysate flow", "": "The flow"}[c.Circuit]
 	if r.Within {
-		r.Findings = append(r.Findings, Finding{Level: "pass", Code: "flow_within", Text: fmt.Sprintf(
+		r.Findings = append(r.Findings, Finding{Level: "pass", Code: "flow_within", Text: sentence(
 			"%s measures %.1f mL/min against %g set (%+.1f %%), within ±%g %%.", what, flow, c.SetFlow, 100*r.Deviation, 100*c.Tolerance)})
 	} else {
-		r.Findings = append(r.Findings, Finding{Level: "fail", Code: "flow_outside", Text: fmt.Sprintf(
+		r.Findings = append(r.Findings, Finding{Level: "fail", Code: "flow_outside", Text: sentence(
 			"%s measures %.1f mL/min against %g set (%+.1f %%), outside ±%g %%: repeat the collection, then calibrate or service it by the manufacturer's procedure.", what, flow, c.SetFlow, 100*r.Deviation, 100*c.Tolerance)})
 	}
 	if c.Seconds < shortCollection {
-		r.Findings = append(r.Findings, Finding{Level: "note", Code: "short_collection", Text: fmt.Sprintf(
+		r.Findings = append(r.Findings, Finding{Level: "note", Code: "short_collection", Text: sentence(
 			"The collection took %g s: each %g s of stopwatch error is %.1f %% of the flow. Collect for a minute or more.", c.Seconds, stopwatchSeconds, 100*stopwatchSeconds/c.Seconds)})
 	}
 	r.Overall = worst(r.Findings)

@@ -153,6 +153,20 @@ func TestCheckViewDemoMatchesAPI(t *testing.T) {
 	}
 	wantVerdict(t, p, "#check-results", "pass", "✓", "PASS", "As rated")
 	wantFindings(t, p, "#check-results", resp)
+	// A number in a sentence reads as the table shows it: the co-current
+	// ceiling is 191.25 exactly, a tie at one decimal, which Go's ties to
+	// even once wrote as 191.2 beside the table's 191.3.
+	for _, c := range []struct{ code, out string }{
+		{"not_cocurrent", "cocurrent.clearance_ceiling"},
+		{"as_rated", "clearance"},
+		{"as_rated", "countercurrent.expected_clearance"},
+		{"mass_balance_ok", "mass_balance_error"},
+	} {
+		both := eval[[]string](p, fmt.Sprintf(`[document.querySelector('#check-results li[data-code=%q]').textContent, document.querySelector('#check-results output[data-out=%q]').textContent]`, c.code, c.out))
+		if !strings.Contains(both[0], both[1]+" ") {
+			t.Errorf("finding %s %q does not show %s as the table does, %q", c.code, both[0], c.out, both[1])
+		}
+	}
 	if mark := eval[string](p, `document.querySelector('#check-results [data-mark]').textContent`); mark != "✓ within" {
 		t.Errorf("mass balance mark %q, want %q", mark, "✓ within")
 	}

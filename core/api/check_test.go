@@ -67,6 +67,31 @@ func TestCheckAPIShape(t *testing.T) {
 	}
 }
 
+// The findings give a number as the page's table shows it (format.js,
+// toFixed). At the demo's flows the co-current ceiling is
+// QB (QD + QF)/(QB + QD) = 300 x 510/800 = 191.25 mL/min exactly
+// (TransferCeiling), a tie at one decimal: toFixed gives 191.3 (ECMA-262,
+// 21.1.3.3: of two nearest, the larger), and so must the sentence (fmt's
+// ties to even gave 191.2).
+func TestCheckAPIFindingRounding(t *testing.T) {
+	var got api.CheckResponse
+	if err := json.Unmarshal(api.Check([]byte(checkRequest)), &got); err != nil {
+		t.Fatal(err)
+	}
+	if got.Cocurrent.Ceiling != 191.25 {
+		t.Fatalf("co-current ceiling %.17g, want 191.25 (300 x 510/800)", got.Cocurrent.Ceiling)
+	}
+	for _, f := range got.Findings {
+		if f.Code == "not_cocurrent" {
+			if !strings.Contains(f.Text, "above 191.3 mL/min") {
+				t.Errorf("not_cocurrent finding %q, want the ceiling as 191.3", f.Text)
+			}
+			return
+		}
+	}
+	t.Errorf("findings %+v: no not_cocurrent", got.Findings)
+}
+
 // The API returns exactly core.Check's result, with the request's
 // percentages as fractions and the default seed.
 func TestCheckAPIMatchesCore(t *testing.T) {
