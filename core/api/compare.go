@@ -39,7 +39,7 @@ type CompareResponse struct {
 
 // Compare answers a CompareRequest.
 func Compare(request []byte) []byte {
-	response, _ := compare(request, false)
+	response, _ := compare(request, false, true)
 	return response
 }
 
@@ -47,13 +47,17 @@ func Compare(request []byte) []byte {
 // series, when the request asks for them, returned apart from the JSON in
 // the order of core.PackedSeries (see Entry.Packed).
 func ComparePacked(request []byte) ([]byte, []float64) {
-	return compare(request, true)
+	return compare(request, true, true)
 }
 
-func compare(request []byte, packed bool) ([]byte, []float64) {
+// compare answers both; with fast false it takes the general decoder and
+// encoder only (see fastpath.go).
+func compare(request []byte, packed, fast bool) ([]byte, []float64) {
 	var req CompareRequest
-	if err := decode(request, &req); err != nil {
-		return failure(err), nil
+	if fields := req.flatFields(); !fast || !decodeFlat(request, fields[:]) {
+		if err := decodeCopy(request, &req); err != nil {
+			return failure(err), nil
+		}
 	}
 	op, err := operating(req.QB, req.QD, req.KoA, req.CBi, req.CDi)
 	if err != nil {
@@ -68,7 +72,7 @@ func compare(request []byte, packed bool) ([]byte, []float64) {
 	}
 	resp := CompareResponse{OK: true, Input: op, Comparison: c}
 	if req.Sweep == nil {
-		return respond(&resp, nil), nil
+		return respondCompare(&resp, fast), nil
 	}
 	spec, err := req.Sweep.spec()
 	if err != nil {
@@ -80,14 +84,14 @@ func compare(request []byte, packed bool) ([]byte, []float64) {
 	}
 	if !packed {
 		resp.Sweeps = &s
-		return respond(&resp, nil), nil
+		return respondCompare(&resp, false), nil
 	}
 	resp.Packed = &Packing{Points: s.Points(), Series: packedSeries}
 	if !finite(s.Packed()) {
 		// What respond would refuse in the JSON (see respond).
 		return failure(fieldErr("", "internal error: result could not be encoded")), nil
 	}
-	return respond(&resp, nil), s.Packed()
+	return respondCompare(&resp, false), s.Packed()
 }
 
 var packedSeries = core.PackedSeries[:]

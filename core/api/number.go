@@ -79,6 +79,15 @@ func isDecimal(s string) bool {
 // the raw bytes, so that an absent or empty field costs no allocation (the
 // page sends every field of its form, most of them empty).
 func (n Number) value(field string) (float64, bool, error) {
+	if v, given, ok := quickNumber(n.raw); ok {
+		return v, given, nil
+	}
+	return n.parse(field)
+}
+
+// parse is value for every form of number (quickNumber reads the common
+// ones, and agrees with it).
+func (n Number) parse(field string) (float64, bool, error) {
 	raw := bytes.TrimSpace(n.raw)
 	if len(raw) == 0 || string(raw) == "null" {
 		return 0, false, nil

@@ -1,0 +1,444 @@
+package api
+
+import (
+	"cmp"
+	"math"
+	"reflect"
+	"slices"
+	"strconv"
+	"strings"
+
+	"clearkit/core"
+)
+
+// The fast path of compare. Under WebAssembly the general decoder
+// (goccy/go-json's Unmarshal, then checkKeys' walk along the request type)
+// and encoder cost several times the calculation itself, and the page calls
+// compare on every input event. The fast path reads the page's request, a
+// flat object of strings, numbers and nulls, in one pass without
+// reflection, and writes the answer without chart series directly.
+// Anything else goes the general way, which gives every error: the fast
+// path never refuses a request, it only declines it, so every message
+// stays what the general path says. fastpath_test.go checks that both paths give the same
+// bytes (the bad-input catalogue, the fuzz corpora, seeded random requests
+// and FuzzFastPath), and that the encoder writes every member of the answer.
+
+// flatField is a member of a flat request object: its JSON name as
+// documented and the Number it fills.
+type flatField struct {
+	name string
+	n    *Number
+}
+
+// maxFlatFields bounds the fields of a flat request (the bits of seen).
+const maxFlatFields = 32
+
+// decodeFlat reads request into fields when request is a flat JSON object
+// whose every key is one of the fields' names, written exactly (no escape,
+// no other case) and at most once, and whose every value is null, a JSON
+// number, or a string of printable ASCII without escapes, with only JSON
+// white space (space, tab, line feed, carriage return) between the tokens.
+// It then sets each field given to its value as written, which is what
+// the general decoder hands Number.UnmarshalJSON (the Numbers share
+// request's bytes, so request must not change while they are read), and
+// returns true. For
+// any other request (larger than MaxRequestBytes, nested, unknown or
+// repeated keys, other values, malformed) it returns false and changes
+// nothing: decode then reads it, or says what is wrong with it.
+func decodeFlat(request []byte, fields []flatField) bool {
+	if len(request) > MaxRequestBytes || len(fields) > maxFlatFields {
+		return false
+	}
+	var raw [maxFlatFields][]byte
+	var seen uint32
+	s := request
+	i := flatSpace(s, 0)
+	if i >= len(s) || s[i] != '{' {
+		return false
+	}
+	i = flatSpace(s, i+1)
+	if i < len(s) && s[i] == '}' {
+		i++
+	} else {
+		for {
+			// the key
+			if i >= len(s) || s[i] != '"' {
+				return false
+			}
+			end := flatString(s, i)
+			if end < 0 {
+				return false
+			}
+			k := -1
+			for j := range fields {
+				if fields[j].name == string(s[i+1:end-1]) {
+					k = j
+					break
+				}
+			}
+			if k < 0 || seen&(1<<k) != 0 {
+				return false
+			}
+			seen |= 1 << k
+			i = flatSpace(s, end)
+			if i >= len(s) || s[i] != ':' {
+				return false
+			}
+			// the value
+			i = flatSpace(s, i+1)
+			if i >= len(s) {
+				return false
+			}
+			switch c := s[i]; {
+			case c == '"':
+				end = flatString(s, i)
+			case c == 'n':
+				end = -1
+				if len(s)-i >= 4 && string(s[i:i+4]) == "null" {
+					end = i + 4
+				}
+			case c == '-' || c >= '0' && c <= '9':
+				end = flatNumber(s, i)
+			default:
+				end = -1
+			}
+			if end < 0 {
+				return false
+			}
+			raw[k] = s[i:end]
+			i = flatSpace(s, end)
+			if i >= len(s) {
+				return false
+			}
+			if s[i] == '}' {
+				i++
+				break
+			}
+			if s[i] != ',' {
+				return false
+			}
+			i = flatSpace(s, i+1)
+		}
+	}
+	if flatSpace(s, i) != len(s) {
+		return false
+	}
+	for k := range fields {
+		if seen&(1<<k) != 0 {
+			fields[k].n.raw = raw[k]
+		}
+	}
+	return true
+}
+
+// flatSpace returns the position of the first byte at or after i that is
+// not JSON white space.
+func flatSpace(s []byte, i int) int {
+	for i < len(s) && (s[i] == ' ' || s[i] == '\t' || s[i] == '\n' || s[i] == '\r') {
+		i++
+	}
+	return i
+}
+
+// flatString returns the position after the string that starts (with its
+// quote) at i, or -1 if it holds anything but printable ASCII without
+// escapes, or does not end.
+func flatString(s []byte, i int) int {
+	for i++; i < len(s); i++ {
+		switch c := s[i]; {
+		case c == '"':
+			return i + 1
+		case c < 0x20 || c > 0x7e || c == '\\':
+			return -1
+		}
+	}
+	return -1
+}
+
+// flatNumber returns the position after the JSON number (RFC 8259:
+// -?(0|[1-9][0-9]*)(\.[0-9]+)?([eE][+-]?[0-9]+)?) that starts at i, or -1.
+func flatNumber(s []byte, i int) int {
+	digits := func() int {
+		start := i
+		for i < len(s) && s[i] >= '0' && s[i] <= '9' {
+			i++
+		}
+		return i - start
+	}
+	if s[i] == '-' {
+		i++
+	}
+	if i < len(s) && s[i] == '0' {
+		i++
+	} else if digits() == 0 {
+		return -1
+	}
+	if i < len(s) && s[i] == '.' {
+		i++
+		if digits() == 0 {
+			return -1
+		}
+	}
+	if i < len(s) && (s[i] == 'e' || s[i] == 'E') {
+		i++
+		if i < len(s) && (s[i] == '+' || s[i] == '-') {
+			i++
+		}
+		if digits() == 0 {
+			return -1
+		}
+	}
+	return i
+}
+
+// flatFields lists the fields of a compare request without its sweep: a
+// request with a sweep goes the general way.
+func (r *CompareRequest) flatFields() [10]flatField {
+	return [...]flatField{
+		{"qb", &r.QB}, {"qd", &r.QD}, {"koa", &r.KoA}, {"cbi", &r.CBi}, {"cdi", &r.CDi},
+		{"hct", &r.Hct}, {"plasma_water", &r.PlasmaWater}, {"red_cell_water", &r.RedCellWater},
+		{"qf", &r.QF}, {"sieving", &r.Sieving},
+	}
+}
+
+// respondCompare encodes a successful compare: with fast, directly when it
+// has no sweeps (appendCompare), and through respond otherwise. respond
+// gets a copy, so that r does not escape to the heap (an allocation costs
+// about as much as writing a few numbers under WebAssembly).
+func respondCompare(r *CompareResponse, fast bool) []byte {
+	if fast {
+		if b, ok := appendCompare(make([]byte, 0, 1024), r); ok {
+			return b
+		}
+	}
+	c := *r
+	return respond(&c, nil)
+}
+
+// decodeCopy is decode into a new value that is then copied to *v: the
+// value a request is decoded into escapes to the heap (decode takes it as
+// an interface), and this keeps v, which the fast path fills, off it.
+func decodeCopy[T any](request []byte, v *T) error {
+	p := new(T)
+	err := decode(request, p)
+	*v = *p
+	return err
+}
+
+// appendCompare appends r as the general encoder writes it, member by
+// member in the order of the types' fields, and reports true; it declines
+// (false) an answer with sweeps or packed series, or with a number that
+// is not finite (the general encoder refuses it). A member added to
+// CompareResponse, core.Operating, core.WholeBlood, core.Filtration,
+// core.Comparison or core.Performance must be added here too, and to
+// answerMembers: TestAppendCompareMembers fails until it is.
+func appendCompare(b []byte, r *CompareResponse) ([]byte, bool) {
+	if r.Sweeps != nil || r.Packed != nil || !answerKnown {
+		return nil, false
+	}
+	w := numberWriter{b: b, finite: true}
+	if r.OK {
+		w.b = append(w.b, `{"ok":true,"input":{"qb":`...)
+	} else {
+		w.b = append(w.b, `{"ok":false,"input":{"qb":`...)
+	}
+	in := &r.Input
+	w.number(in.QB)
+	w.member(`,"qd":`, in.QD)
+	w.member(`,"koa":`, in.KoA)
+	w.member(`,"cbi":`, in.CBi)
+	w.member(`,"cdi":`, in.CDi)
+	if in.Blood != nil {
+		w.member(`,"blood":{"hct":`, in.Blood.Hct)
+		w.member(`,"plasma_water":`, in.Blood.PlasmaWater)
+		w.member(`,"red_cell_water":`, in.Blood.RedCellWater)
+		w.b = append(w.b, '}')
+	}
+	w.member(`,"qf":`, in.QF)
+	w.member(`,"sieving":`, in.Sieving)
+	w.b = append(w.b, `},"countercurrent":`...)
+	w.performance(&r.Countercurrent)
+	w.b = append(w.b, `,"cocurrent":`...)
+	w.performance(&r.Cocurrent)
+	w.member(`,"countercurrent_gain":`, r.Gain)
+	w.member(`,"countercurrent_gain_percent":`, r.GainPercent)
+	w.member(`,"ntu":`, r.NTU)
+	w.member(`,"flow_ratio":`, r.FlowRatio)
+	w.member(`,"qbw":`, r.QBW)
+	w.b = append(w.b, '}')
+	return w.b, w.finite
+}
+
+// answerMembers are the members appendCompare writes, by their JSON
+// paths, in order (sweeps and packed aside: an answer with either goes to
+// the general encoder).
+var answerMembers = []string{
+	"ok", "input.qb", "input.qd", "input.koa", "input.cbi", "input.cdi",
+	"input.blood.hct", "input.blood.plasma_water", "input.blood.red_cell_water",
+	"input.qf", "input.sieving",
+	"countercurrent.clearance", "countercurrent.dialysance", "countercurrent.extraction_ratio",
+	"countercurrent.cbo", "countercurrent.cdo", "countercurrent.transfer_rate",
+	"countercurrent.log_mean_difference", "countercurrent.clearance_ceiling", "countercurrent.dialysance_ceiling",
+	"cocurrent.clearance", "cocurrent.dialysance", "cocurrent.extraction_ratio",
+	"cocurrent.cbo", "cocurrent.cdo", "cocurrent.transfer_rate",
+	"cocurrent.log_mean_difference", "cocurrent.clearance_ceiling", "cocurrent.dialysance_ceiling",
+	"countercurrent_gain", "countercurrent_gain_percent", "ntu", "flow_ratio", "qbw",
+}
+
+// answerKnown is whether answerMembers are all the members of the answer's
+// types (found through reflection, once): should a member be added to
+// them and not to appendCompare, every answer goes to the general encoder
+// rather than lose it (and TestAppendCompareMembers fails).
+var answerKnown = slices.Equal(jsonMembers(reflect.TypeFor[CompareResponse](), ""), answerMembers)
+
+// jsonMembers lists the JSON paths of the members of struct type t that
+// are not structs themselves, as the encoder writes them: fields of
+// embedded structs without a tag promoted, structs and pointers to structs
+// entered, "sweeps" and "packed" left out.
+func jsonMembers(t reflect.Type, prefix string) []string {
+	var paths []string
+	for i := range t.NumField() {
+		f := t.Field(i)
+		name, _, _ := strings.Cut(f.Tag.Get("json"), ",")
+		ft := f.Type
+		if ft.Kind() == reflect.Pointer {
+			ft = ft.Elem()
+		}
+		switch {
+		case name == "-" || !f.IsExported() && !f.Anonymous || prefix+name == "sweeps" || prefix+name == "packed":
+		case f.Anonymous && name == "" && ft.Kind() == reflect.Struct:
+			paths = append(paths, jsonMembers(ft, prefix)...)
+		case ft.Kind() == reflect.Struct:
+			paths = append(paths, jsonMembers(ft, prefix+cmp.Or(name, f.Name)+".")...)
+		default:
+			paths = append(paths, prefix+cmp.Or(name, f.Name))
+		}
+	}
+	return paths
+}
+
+// numberWriter appends JSON members and numbers to b. finite turns false
+// at the first number that is not finite. A number with the bits of one
+// of the last few written is copied from where it was written: the answer
+// repeats values (clearance, dialysance and transfer rate are equal when
+// CBi = 1 and CDi = 0).
+type numberWriter struct {
+	b      []byte
+	finite bool
+	recent [4]struct {
+		bits       uint64
+		start, end int
+	}
+	next int // the slot of recent to write next
+}
+
+func (w *numberWriter) member(name string, x float64) {
+	w.b = append(w.b, name...)
+	w.number(x)
+}
+
+func (w *numberWriter) number(x float64) {
+	if isSmallInteger(x) {
+		w.b = appendJSONFloat(w.b, x) // cheap: not worth a copy
+		return
+	}
+	bits := math.Float64bits(x)
+	for k := range w.recent {
+		if r := &w.recent[k]; r.bits == bits && r.end > 0 {
+			w.b = append(w.b, w.b[r.start:r.end]...)
+			return
+		}
+	}
+	if math.IsInf(x, 0) || math.IsNaN(x) {
+		w.finite = false
+		w.b = append(w.b, '0')
+		return
+	}
+	start := len(w.b)
+	w.b = appendJSONFloat(w.b, x)
+	r := &w.recent[w.next]
+	r.bits, r.start, r.end = bits, start, len(w.b)
+	w.next = (w.next + 1) % len(w.recent)
+}
+
+// isSmallInteger reports whether x is an integer of magnitude below 2^53.
+func isSmallInteger(x float64) bool {
+	i := int64(x)
+	return float64(i) == x && -1<<53 < i && i < 1<<53
+}
+
+func (w *numberWriter) performance(p *core.Performance) {
+	w.member(`{"clearance":`, p.Clearance)
+	w.member(`,"dialysance":`, p.Dialysance)
+	w.member(`,"extraction_ratio":`, p.ExtractionRatio)
+	w.member(`,"cbo":`, p.BloodOutlet)
+	w.member(`,"cdo":`, p.DialysateOutlet)
+	w.member(`,"transfer_rate":`, p.TransferRate)
+	w.member(`,"log_mean_difference":`, p.LogMeanDifference)
+	w.member(`,"clearance_ceiling":`, p.ClearanceCeiling)
+	w.member(`,"dialysance_ceiling":`, p.DialysanceCeiling)
+	w.b = append(w.b, '}')
+}
+
+// appendJSONFloat appends the finite x as encoding/json and goccy/go-json
+// write a float64: the shortest decimal that reads back as x, in the form
+// strconv.AppendFloat gives with 'f', or with 'e' below 1e-6 and from
+// 1e21, the exponent then without a leading zero. An integer of magnitude
+// below 2^53 is written by its digits, which are that shortest decimal
+// (every other integer of as many digits or fewer is at least 1 away and
+// reads as another float), without the cost of the general search.
+func appendJSONFloat(b []byte, x float64) []byte {
+	if isSmallInteger(x) {
+		i := int64(x)
+		if i == 0 && math.Signbit(x) {
+			return append(b, "-0"...)
+		}
+		var buf [64]byte
+		start := appendWhole(&buf, uint64(max(i, -i)), i < 0)
+		return append(b, buf[start:24]...)
+	}
+	if b, ok := appendShortestFraction(b, x); ok {
+		return b
+	}
+	format := byte('f')
+	if a := math.Abs(x); a != 0 && (a < 1e-6 || a >= 1e21) {
+		format = 'e'
+	}
+	b = strconv.AppendFloat(b, x, format, -1, 64)
+	if format == 'e' {
+		// e-07 becomes e-7
+		if n := len(b); n >= 4 && b[n-4] == 'e' && b[n-3] == '-' && b[n-2] == '0' {
+			b[n-2] = b[n-1]
+			b = b[:n-1]
+		}
+	}
+	return b
+}
+
+// quickNumber reads the forms of a Number the page sends most, without the
+// general parse's calls: an empty string (absent), and a whole number of
+// up to 15 digits, written as a JSON number or in a string, without sign,
+// point or space ("300"). It reports ok false for any other raw value,
+// which Number.parse then reads. Such a number is below 2^53, so its
+// float64 is exact and is what strconv.ParseFloat returns.
+// TestQuickNumber checks that it agrees with Number.parse.
+func quickNumber(raw []byte) (v float64, given, ok bool) {
+	digits := raw
+	if len(raw) >= 2 && raw[0] == '"' && raw[len(raw)-1] == '"' {
+		digits = raw[1 : len(raw)-1]
+		if len(digits) == 0 {
+			return 0, false, true
+		}
+	}
+	if len(digits) == 0 || len(digits) > 15 {
+		return 0, false, false
+	}
+	var u uint64
+	for _, c := range digits {
+		if c < '0' || c > '9' {
+			return 0, false, false
+		}
+		u = u*10 + uint64(c-'0')
+	}
+	return float64(u), true, true
+}

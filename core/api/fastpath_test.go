@@ -1,0 +1,579 @@
+package api
+
+import (
+	"bytes"
+	stdjson "encoding/json"
+	"fmt"
+	"math"
+	"math/rand/v2"
+	"os"
+	"path/filepath"
+	"reflect"
+	"slices"
+	"strconv"
+	"strings"
+	"testing"
+
+	"github.com/goccy/go-json"
+
+	"clearkit/core"
+	"clearkit/internal/badinput"
+)
+
+// The fast path of compare (fastpath.go) must answer exactly as the
+// general path does, byte for byte, for every request: these tests send
+// the same request both ways (compare(request, packed, true) and
+// compare(request, packed, false)), as Compare and as ComparePacked.
+
+// pageRequest is what the compare view sends: the form's texts as typed,
+// the empty conditions included (site/js/compare-view.js; the same request
+// as wasm/bench/bench.mjs).
+const pageRequest = `{"qb":"300","qd":"500","koa":"800","cbi":"","cdi":"","qf":"","sieving":"","hct":"","plasma_water":"","red_cell_water":""}`
+
+// sameBothWays fails t unless request gets the same answer both ways, and
+// reports whether the fast decoder took it.
+func sameBothWays(t testing.TB, request []byte) bool {
+	t.Helper()
+	for _, packed := range []bool{false, true} {
+		fast, fastSeries := compare(request, packed, true)
+		general, generalSeries := compare(request, packed, false)
+		if !bytes.Equal(fast, general) || !slices.Equal(fastSeries, generalSeries) {
+			t.Errorf("compare(%q, packed %v):\nfast path    %s, %d series values\ngeneral path %s, %d series values", clip(string(request)), packed, fast, len(fastSeries), general, len(generalSeries))
+		}
+	}
+	var req CompareRequest
+	fields := req.flatFields()
+	return decodeFlat(request, fields[:])
+}
+
+func TestFastPathPageRequest(t *testing.T) {
+	for _, r := range []string{pageRequest, routineRequestForFastPath, " \t\r\n" + pageRequest + "\n"} {
+		if !sameBothWays(t, []byte(r)) {
+			t.Errorf("decodeFlat(%s) declined the page's request: the fast path is not used", r)
+		}
+	}
+}
+
+const routineRequestForFastPath = `{"qb":300,"qd":500,"koa":800}`
+
+// TestFastPathCatalogue sends the bad-input catalogue (testdata/bad-input.json:
+// the cases of every entry and compare's own, its valid request and
+// examples) both ways.
+func TestFastPathCatalogue(t *testing.T) {
+	c, err := badinput.Load()
+	if err != nil {
+		t.Fatal(err)
+	}
+	section := c.Entries["compare"]
+	bodies := [][]byte{section.Valid}
+	for _, ex := range section.Examples {
+		bodies = append(bodies, ex)
+	}
+	cases, err := c.Cases("compare")
+	if err != nil {
+		t.Fatal(err)
+	}
+	for _, cs := range cases {
+		bodies = append(bodies, cs.Body)
+	}
+	fast := 0
+	for _, b := range bodies {
+		if sameBothWays(t, b) {
+			fast++
+		}
+	}
+	// Not a speed check: a guard that the comparison covers the fast path
+	// at all (most of compare's cases are flat requests with one bad value).
+	if fast < len(bodies)/3 {
+		t.Errorf("the fast path took %d of the catalogue's %d requests, want at least a third", fast, len(bodies))
+	}
+	t.Logf("%d requests, %d by the fast decoder", len(bodies), fast)
+}
+
+// TestFastPathCorpora sends the committed fuzz inputs of every target of
+// this package (testdata/fuzz/*) both ways.
+func TestFastPathCorpora(t *testing.T) {
+	files, err := filepath.Glob("testdata/fuzz/*/*")
+	if err != nil || len(files) == 0 {
+		t.Fatalf("no fuzz corpus files (%v)", err)
+	}
+	for _, f := range files {
+		data, err := os.ReadFile(f)
+		if err != nil {
+			t.Fatal(err)
+		}
+		for _, line := range strings.Split(string(data), "\n") {
+			if q, ok := strings.CutPrefix(line, "[]byte("); ok {
+				s, err := strconv.Unquote(strings.TrimSuffix(q, ")"))
+				if err != nil {
+					t.Fatalf("%s: %v", f, err)
+				}
+				sameBothWays(t, []byte(s))
+			}
+		}
+	}
+}
+
+// TestFastPathRandom sends seeded random requests both ways: mostly what
+// the fast path reads (valid and bad values alike), and every kind of
+// request it must leave to the general path.
+func TestFastPathRandom(t *testing.T) {
+	rng := rand.New(rand.NewPCG(7, 11))
+	n, fast := 20000, 0
+	if testing.Short() {
+		n = 2000
+	}
+	for range n {
+		if sameBothWays(t, randomCompareRequest(rng)) {
+			fast++
+		}
+		if t.Failed() {
+			return
+		}
+	}
+	if fast < n/4 || fast > n*9/10 {
+		t.Errorf("the fast path took %d of %d random requests, want between a quarter and nine tenths", fast, n)
+	}
+	t.Logf("%d requests, %d by the fast decoder", n, fast)
+}
+
+// FuzzFastPath: whatever the request, both paths give the same bytes.
+func FuzzFastPath(f *testing.F) {
+	rng := rand.New(rand.NewPCG(3, 5))
+	for range 50 {
+		f.Add(randomCompareRequest(rng))
+	}
+	f.Add([]byte(pageRequest))
+	f.Add([]byte(`{"qb":300,"qd":500,"koa":800,"hct":32,"qf":10,"sieving":0.6}`))
+	f.Fuzz(func(t *testing.T, request []byte) {
+		sameBothWays(t, request)
+	})
+}
+
+var randomNames = []string{"qb", "qd", "koa", "cbi", "cdi", "hct", "plasma_water", "red_cell_water", "qf", "sieving"}
+
+// randomCompareRequest builds an object of some of compare's fields with
+// values that are mostly plausible, sometimes not, in JSON that is mostly
+// what the page sends, sometimes not.
+func randomCompareRequest(rng *rand.Rand) []byte {
+	space := func() string {
+		if rng.IntN(40) != 0 {
+			return ""
+		}
+		return []string{" ", "\t", "\n", "\r\n  ", "\v", "\f", "\u00a0"}[rng.IntN(7)]
+	}
+	var b strings.Builder
+	b.WriteString(space() + "{" + space())
+	names := rng.Perm(len(randomNames))
+	if rng.IntN(4) != 0 { // mostly the required fields first
+		names = append([]int{0, 1, 2}, slicesWithout(names, 0, 1, 2)...)
+		names = names[:3+rng.IntN(len(names)-2)]
+	} else {
+		names = names[:rng.IntN(len(names)+1)]
+	}
+	if len(names) > 0 && rng.IntN(20) == 0 { // a field given twice
+		names = append(names, names[rng.IntN(len(names))])
+	}
+	for j, k := range names {
+		if j > 0 {
+			b.WriteString(space() + "," + space())
+		}
+		name := randomNames[k]
+		switch rng.IntN(80) {
+		case 0:
+			name = strings.ToUpper(name)
+		case 1:
+			name += "x"
+		case 2:
+			name = `q\u0062`
+		case 3:
+			name = "sweep"
+		}
+		b.WriteString(`"` + name + `"` + space() + ":" + space() + randomValue(rng, k))
+	}
+	b.WriteString(space() + "}" + space())
+	s := b.String()
+	switch rng.IntN(30) {
+	case 0:
+		s = s[:rng.IntN(len(s)+1)]
+	case 1:
+		s += []string{"}", "x", "{}", " 1", ","}[rng.IntN(5)]
+	case 2:
+		s = strings.Replace(s, "}", `,"sweep":{"points":3}}`, 1)
+	}
+	return []byte(s)
+}
+
+// slicesWithout returns s without the values drop.
+func slicesWithout(s []int, drop ...int) []int {
+	var out []int
+	for _, v := range s {
+		if !slices.Contains(drop, v) {
+			out = append(out, v)
+		}
+	}
+	return out
+}
+
+// randomValue is a value for field k of randomNames.
+func randomValue(rng *rand.Rand, k int) string {
+	// plausible magnitudes: flows, KoA, concentrations, haematocrit, water
+	// fractions, QF, sieving
+	scale := []float64{600, 1000, 2000, 10, 2, 60, 1, 1, 30, 1}[k]
+	x := rng.Float64() * scale
+	switch rng.IntN(6) {
+	case 0:
+		x = math.Round(x)
+	case 1:
+		x = math.Round(x*10) / 10
+	}
+	num := strconv.FormatFloat(x, 'g', -1, 64)
+	switch rng.IntN(24) {
+	case 0:
+		return `""`
+	case 1:
+		return "null"
+	case 2:
+		return `"` + strings.Replace(num, ".", ",", 1) + `"`
+	case 3:
+		return `" ` + num + ` "`
+	case 4:
+		return []string{"true", "false", "{}", "[]", "[1,2]", `{"a":1}`}[rng.IntN(6)]
+	case 5:
+		return []string{`"NaN"`, `"Infinity"`, `"1e999"`, `"+5"`, `".5"`, `"5."`, `"abc"`, `"\u0033"`, `"3\"`, "1e999", "-0", "-5", "01", "1.", "1e", "-", "0.0", "2E+2", `"é"`, `"` + "\x7f" + `"`}[rng.IntN(20)]
+	case 6, 7, 8:
+		return num
+	}
+	return `"` + num + `"`
+}
+
+// TestAppendCompareMembers fills every member of an answer with a value
+// that is not zero, through reflection, so that a member added to the
+// answer's types shows here even when no request sets it, and wants the
+// general encoder's bytes from appendCompare. Sweeps and Packed are left
+// nil: an answer with either goes to the general encoder.
+func TestAppendCompareMembers(t *testing.T) {
+	if got := jsonMembers(reflect.TypeFor[CompareResponse](), ""); !slices.Equal(got, answerMembers) {
+		t.Fatalf("the answer's members are %q,\nappendCompare writes %q (answerMembers): add the new member to both, in fastpath.go", got, answerMembers)
+	}
+	rng := rand.New(rand.NewPCG(1, 2))
+	for i := range 200 {
+		var r CompareResponse
+		fill(reflect.ValueOf(&r).Elem(), rng, i%2 == 0)
+		r.Sweeps, r.Packed = nil, nil
+		want, err := json.Marshal(&r)
+		if err != nil {
+			t.Fatal(err)
+		}
+		got, ok := appendCompare(nil, &r)
+		if !ok || !bytes.Equal(got, want) {
+			t.Fatalf("appendCompare = %s, %v,\nwant %s (a member added to the answer must be added to appendCompare in fastpath.go)", got, ok, want)
+		}
+	}
+	// An answer with sweeps, or a number that is not finite, is declined.
+	for _, x := range []float64{math.NaN(), math.Inf(1), math.Inf(-1)} {
+		r := CompareResponse{OK: true}
+		r.Cocurrent.LogMeanDifference = x
+		if _, ok := appendCompare(nil, &r); ok {
+			t.Errorf("appendCompare with log_mean_difference %g: accepted, want declined", x)
+		}
+	}
+	if _, ok := appendCompare(nil, &CompareResponse{OK: true, Sweeps: &core.Sweeps{}}); ok {
+		t.Errorf("appendCompare with sweeps: accepted, want declined")
+	}
+	if _, ok := appendCompare(nil, &CompareResponse{OK: true, Packed: &Packing{}}); ok {
+		t.Errorf("appendCompare with packed series: accepted, want declined")
+	}
+}
+
+// fill sets every settable value in v: numbers to random values (repeated
+// now and then, for numberWriter's copies), booleans to true, pointers to a
+// filled value when withPointers, strings and lists to something.
+func fill(v reflect.Value, rng *rand.Rand, withPointers bool) {
+	switch v.Kind() {
+	case reflect.Float64, reflect.Float32:
+		v.SetFloat(randomFloat(rng))
+	case reflect.Int, reflect.Int64, reflect.Int32:
+		v.SetInt(rng.Int64N(1000) + 1)
+	case reflect.Bool:
+		v.SetBool(true)
+	case reflect.String:
+		v.SetString("x")
+	case reflect.Pointer:
+		if withPointers {
+			v.Set(reflect.New(v.Type().Elem()))
+			fill(v.Elem(), rng, withPointers)
+		}
+	case reflect.Struct:
+		for i := range v.NumField() {
+			if v.Type().Field(i).IsExported() {
+				fill(v.Field(i), rng, withPointers)
+			}
+		}
+	case reflect.Slice:
+		v.Set(reflect.MakeSlice(v.Type(), 2, 2))
+		for i := range 2 {
+			fill(v.Index(i), rng, withPointers)
+		}
+	case reflect.Map:
+		v.Set(reflect.MakeMap(v.Type()))
+	}
+}
+
+// randomFloat is a finite float64: any bit pattern, or a short decimal, an
+// integer, zero or a value at an edge of the formats.
+func randomFloat(rng *rand.Rand) float64 {
+	switch rng.IntN(8) {
+	case 0:
+		return math.Round(rng.NormFloat64() * 1000)
+	case 1:
+		return math.Round(rng.NormFloat64()*1e4) / 100
+	case 2:
+		return floatEdges[rng.IntN(len(floatEdges))]
+	case 3:
+		return float64(rng.Int64N(1<<54) - 1<<53) // integers near 2^53 as well
+	case 4:
+		return math.Pow(10, float64(rng.IntN(60)-30)) * float64(rng.IntN(10)+1)
+	}
+	for {
+		if x := math.Float64frombits(rng.Uint64()); !math.IsInf(x, 0) && !math.IsNaN(x) {
+			return x
+		}
+	}
+}
+
+// floatEdges: zeros, the integers about 2^53, the powers of ten about the
+// changes of format (1e-6, 1e21), the subnormals and the largest and
+// smallest floats.
+var floatEdges = []float64{
+	0, math.Copysign(0, -1), 1, -1, 0.5, 0.1, 0.2, 0.3, 1.0 / 3, 2.0 / 3,
+	1 << 53, 1<<53 - 1, 1<<53 + 2, -(1 << 53), -(1<<53 - 1), 1 << 63, 1 << 64, 1e15, 1e16, 1e17, 123456789012345680,
+	1e-6, math.Nextafter(1e-6, 0), math.Nextafter(1e-6, 1), 1e-7, 9.999999999999999e-7, 1e-5,
+	1e20, 1e21, math.Nextafter(1e21, 0), math.Nextafter(1e21, 2e21), 1e22, 1e23, 9.999999999999999e22,
+	math.MaxFloat64, -math.MaxFloat64, math.SmallestNonzeroFloat64, -math.SmallestNonzeroFloat64,
+	2 * math.SmallestNonzeroFloat64, 0x1p-1022, math.Nextafter(0x1p-1022, 0), 0x1.fffffffffffffp-1022,
+	5e-324, 1e-323, 2.2250738585072014e-308, 1.7976931348623157e308, 4.9406564584124654e-324,
+	0x1p-1074 * 3, 1e308, 1e-308, 1e-320, 1e-100, 1e100, 1e300,
+	247.95456556655517, 2.6666666666666665, 0.6, 187.5,
+}
+
+// TestAppendJSONFloat checks appendJSONFloat against the general encoder
+// (goccy/go-json) and against encoding/json, the reference for how JSON
+// writes a float64: on the edge values, every power of ten and of two and
+// their neighbours, and random values (any bit pattern, short decimals,
+// integers; 300 000 by default, CLEARKIT_FLOATS when set, such as
+// CLEARKIT_FLOATS=50000000 for a long run).
+func TestAppendJSONFloat(t *testing.T) {
+	n := 300_000
+	if testing.Short() {
+		n = 20_000
+	}
+	if s := os.Getenv("CLEARKIT_FLOATS"); s != "" {
+		var err error
+		if n, err = strconv.Atoi(s); err != nil {
+			t.Fatalf("CLEARKIT_FLOATS=%q: %v", s, err)
+		}
+	}
+	check := func(x float64) bool {
+		if math.IsInf(x, 0) {
+			return true // past the largest float
+		}
+		got := appendJSONFloat(nil, x)
+		want, err := json.Marshal(x)
+		if err != nil {
+			t.Fatalf("json.Marshal(%v): %v", x, err)
+		}
+		std, err := stdjson.Marshal(x)
+		if err != nil {
+			t.Fatalf("encoding/json Marshal(%v): %v", x, err)
+		}
+		if !bytes.Equal(got, want) || !bytes.Equal(got, std) {
+			t.Errorf("appendJSONFloat(%b) = %s, want %s (goccy/go-json), %s (encoding/json)", x, got, want, std)
+			return false
+		}
+		return true
+	}
+	for _, x := range floatEdges {
+		check(x)
+		check(-x)
+	}
+	for e := -330; e <= 310; e++ { // every power of ten and its neighbours
+		p, _ := strconv.ParseFloat(fmt.Sprintf("1e%d", e), 64)
+		check(p)
+		check(math.Nextafter(p, 0))
+		check(math.Nextafter(p, math.Inf(1)))
+	}
+	for e := -1074; e <= 1023; e++ { // every power of two and its neighbours
+		p := math.Ldexp(1, e)
+		check(p)
+		check(math.Nextafter(p, 0))
+		check(math.Nextafter(p, math.Inf(1)))
+	}
+	rng := rand.New(rand.NewPCG(13, 17))
+	for range n {
+		if !check(randomFloat(rng)) && t.Failed() {
+			return
+		}
+	}
+}
+
+// FuzzAppendJSONFloat: for every finite float64, appendJSONFloat writes
+// what encoding/json writes.
+func FuzzAppendJSONFloat(f *testing.F) {
+	for _, x := range floatEdges {
+		f.Add(math.Float64bits(x))
+	}
+	f.Fuzz(func(t *testing.T, bits uint64) {
+		x := math.Float64frombits(bits)
+		if math.IsInf(x, 0) || math.IsNaN(x) {
+			return
+		}
+		got := appendJSONFloat(nil, x)
+		want, err := stdjson.Marshal(x)
+		if err != nil || !bytes.Equal(got, want) {
+			t.Errorf("appendJSONFloat(%b) = %s, want %s (encoding/json, %v)", x, got, want, err)
+		}
+	})
+}
+
+func BenchmarkCompareFastPath(b *testing.B) {
+	for _, bc := range []struct{ name, request string }{{"page", pageRequest}, {"numbers", routineRequestForFastPath}} {
+		for _, fast := range []bool{true, false} {
+			b.Run(fmt.Sprintf("%s/fast=%v", bc.name, fast), func(b *testing.B) {
+				req := []byte(bc.request)
+				b.ReportAllocs()
+				for b.Loop() {
+					if resp, _ := compare(req, true, fast); !bytes.HasPrefix(resp, []byte(`{"ok":true`)) {
+						b.Fatalf("compare(%s) = %s", req, resp)
+					}
+				}
+			})
+		}
+	}
+}
+
+// TestShortestFraction checks appendShortestFraction against
+// strconv.AppendFloat(x, 'f', -1, 64) on every float of its range it is
+// given: powers of two and their neighbours (where the lower halfway point
+// moves), the ends of the range, and random significands over the range's
+// exponents (a million by default, CLEARKIT_FLOATS when set). In its range
+// it must never decline a number that is not an integer: the carry it
+// declines cannot happen there.
+func TestShortestFraction(t *testing.T) {
+	n := 1_000_000
+	if testing.Short() {
+		n = 50_000
+	}
+	if s := os.Getenv("CLEARKIT_FLOATS"); s != "" {
+		var err error
+		if n, err = strconv.Atoi(s); err != nil {
+			t.Fatalf("CLEARKIT_FLOATS=%q: %v", s, err)
+		}
+	}
+	inRange := func(x float64) bool {
+		a := math.Abs(x)
+		return a >= 0x1p-6 && a < 0x1p53 && a != math.Trunc(a)
+	}
+	taken := 0
+	check := func(x float64) bool {
+		got, ok := appendShortestFraction([]byte("x"), x)
+		if !ok {
+			if string(got) != "x" {
+				t.Errorf("appendShortestFraction(%b) declined but left %q", x, got)
+			}
+			if inRange(x) {
+				t.Errorf("appendShortestFraction(%v = %b) declined a number of its range", x, x)
+			}
+			return !t.Failed()
+		}
+		taken++
+		if want := strconv.AppendFloat([]byte("x"), x, 'f', -1, 64); !bytes.Equal(got, want) {
+			t.Errorf("appendShortestFraction(%b) = %s, want %s (strconv)", x, got[1:], want[1:])
+		}
+		return !t.Failed()
+	}
+	for _, x := range floatEdges {
+		check(x)
+		check(-x)
+	}
+	for e := -8; e <= 54; e++ {
+		p := math.Ldexp(1, e)
+		// ties between two decimals of as many digits: p + 1/4 and p + 3/4
+		// from 2^50, where 1/8 is the halfway distance
+		for _, x := range []float64{p, math.Nextafter(p, 0), math.Nextafter(p, math.Inf(1)), p + 0.5, p - 0.5, p * 1.5, p + 0.25, p + 0.75, p + 1.25, p + 0.125, p + 0.375, p + 0.0625} {
+			check(x)
+			check(-x)
+		}
+	}
+	rng := rand.New(rand.NewPCG(19, 23))
+	for range n {
+		// a random significand at an exponent of the range and a little
+		// beyond: 2^-8 to 2^54
+		e := rng.IntN(63) - 8
+		x := math.Ldexp(1+float64(rng.Uint64()>>11)/(1<<53), e)
+		if rng.IntN(2) == 0 {
+			x = -x
+		}
+		if !check(x) {
+			return
+		}
+	}
+	if taken < n/2 {
+		t.Errorf("appendShortestFraction took %d of %d numbers, want most", taken, n)
+	}
+}
+
+// FuzzShortestFraction: for every float64 appendShortestFraction takes, it
+// writes what strconv.AppendFloat(x, 'f', -1, 64) writes.
+func FuzzShortestFraction(f *testing.F) {
+	for _, x := range floatEdges {
+		f.Add(math.Float64bits(x))
+	}
+	f.Fuzz(func(t *testing.T, bits uint64) {
+		x := math.Float64frombits(bits)
+		if got, ok := appendShortestFraction(nil, x); ok {
+			if want := strconv.AppendFloat(nil, x, 'f', -1, 64); !bytes.Equal(got, want) {
+				t.Errorf("appendShortestFraction(%b) = %s, want %s (strconv)", x, got, want)
+			}
+		}
+	})
+}
+
+// TestQuickNumber: quickNumber agrees with Number.parse wherever it reads
+// a value, and reads the page's forms: every whole number to 10^6 and
+// random ones to 15 digits, as JSON numbers and in strings, and nearby
+// forms it must leave to parse (signs, points, commas, spaces, 16 digits,
+// escapes, empty and null).
+func TestQuickNumber(t *testing.T) {
+	check := func(raw string, wantQuick bool) {
+		v, given, ok := quickNumber([]byte(raw))
+		if ok != wantQuick {
+			t.Errorf("quickNumber(%s) ok = %v, want %v", raw, ok, wantQuick)
+		}
+		if !ok {
+			return
+		}
+		pv, pgiven, err := Number{raw: []byte(raw)}.parse("f")
+		if err != nil || v != pv || given != pgiven || math.Signbit(v) != math.Signbit(pv) {
+			t.Errorf("quickNumber(%s) = %v, %v; Number.parse gives %v, %v, %v", raw, v, given, pv, pgiven, err)
+		}
+	}
+	for i := range 1_000_001 {
+		s := strconv.Itoa(i)
+		check(s, true)
+		check(`"`+s+`"`, true)
+	}
+	rng := rand.New(rand.NewPCG(29, 31))
+	for range 100_000 {
+		s := strconv.FormatUint(rng.Uint64N(1e15), 10)
+		check(s, true)
+		check(`"`+s+`"`, true)
+		check(`"0`+s+`"`, len(s) < 15)
+	}
+	check(`""`, true)
+	check("999999999999999", true)
+	check(`"000000000000000"`, true)
+	for _, raw := range []string{"", "null", `"`, `"""`, "1000000000000000", `"1000000000000000"`, "-1", `"-1"`, `"+1"`, "1.5", `"1,5"`, `"1."`, `" 1"`, `"1 "`, "1e3", `"1e3"`, `"\u0031"`, `"a"`, "true", "[]", "{}"} {
+		check(raw, false)
+	}
+}
