@@ -54,7 +54,7 @@ func ComparePacked(request []byte) ([]byte, []float64) {
 // encoder only (see fastpath.go).
 func compare(request []byte, packed, fast bool) ([]byte, []float64) {
 	var req CompareRequest
-	if fields := req.flatFields(); !fast || !decodeFlat(request, fields[:]) {
+	if !fast || !req.decodeFast(request) {
 		if err := decodeCopy(request, &req); err != nil {
 			return failure(err), nil
 		}

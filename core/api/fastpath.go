@@ -16,7 +16,8 @@ import (
 // and encoder cost several times the calculation itself, and the page calls
 // compare on every input event. The fast path reads the page's request, a
 // flat object of strings, numbers and nulls, in one pass without
-// reflection, and writes the answer without chart series directly.
+// reflection, and writes the answer without its chart series as JSON
+// directly.
 // Anything else goes the general way, which gives every error: the fast
 // path never refuses a request, it only declines it, so every message
 // stays what the general path says. fastpath_test.go checks that both paths give the same
@@ -24,10 +25,12 @@ import (
 // and FuzzFastPath), and that the encoder writes every member of the answer.
 
 // flatField is a member of a flat request object: its JSON name as
-// documented and the Number it fills.
+// documented and the Number it fills, or, for a member whose only value
+// read here is the empty object {} (compare's sweep), the flag it sets.
 type flatField struct {
-	name string
-	n    *Number
+	name  string
+	n     *Number
+	empty *bool
 }
 
 // maxFlatFields bounds the fields of a flat request (the bits of seen).
@@ -36,7 +39,8 @@ const maxFlatFields = 32
 // decodeFlat reads request into fields when request is a flat JSON object
 // whose every key is one of the fields' names, written exactly (no escape,
 // no other case) and at most once, and whose every value is null, a JSON
-// number, or a string of printable ASCII without escapes, with only JSON
+// number, or a string of printable ASCII without escapes (or, for a field
+// with empty, the empty object), with only JSON
 // white space (space, tab, line feed, carriage return) between the tokens.
 // It then sets each field given to its value as written, which is what
 // the general decoder hands Number.UnmarshalJSON (the Numbers share
@@ -90,6 +94,11 @@ func decodeFlat(request []byte, fields []flatField) bool {
 				return false
 			}
 			switch c := s[i]; {
+			case fields[k].empty != nil:
+				end = -1
+				if j := flatSpace(s, i+1); c == '{' && j < len(s) && s[j] == '}' {
+					end = j + 1
+				}
 			case c == '"':
 				end = flatString(s, i)
 			case c == 'n':
@@ -123,9 +132,13 @@ func decodeFlat(request []byte, fields []flatField) bool {
 	if flatSpace(s, i) != len(s) {
 		return false
 	}
-	for k := range fields {
-		if seen&(1<<k) != 0 {
-			fields[k].n.raw = raw[k]
+	for k, f := range fields {
+		switch {
+		case seen&(1<<k) == 0:
+		case f.empty != nil:
+			*f.empty = true
+		default:
+			f.n.raw = raw[k]
 		}
 	}
 	return true
@@ -191,14 +204,24 @@ func flatNumber(s []byte, i int) int {
 	return i
 }
 
-// flatFields lists the fields of a compare request without its sweep: a
-// request with a sweep goes the general way.
-func (r *CompareRequest) flatFields() [10]flatField {
-	return [...]flatField{
-		{"qb", &r.QB}, {"qd", &r.QD}, {"koa", &r.KoA}, {"cbi", &r.CBi}, {"cdi", &r.CDi},
-		{"hct", &r.Hct}, {"plasma_water", &r.PlasmaWater}, {"red_cell_water", &r.RedCellWater},
-		{"qf", &r.QF}, {"sieving", &r.Sieving},
+// decodeFast reads a flat compare request (decodeFlat) into r, whose
+// sweep may be given as {} (the page's chart request), and reports whether
+// it did; r is left as it was when not.
+func (r *CompareRequest) decodeFast(request []byte) bool {
+	var sweep bool
+	fields := [...]flatField{
+		{name: "qb", n: &r.QB}, {name: "qd", n: &r.QD}, {name: "koa", n: &r.KoA},
+		{name: "cbi", n: &r.CBi}, {name: "cdi", n: &r.CDi}, {name: "hct", n: &r.Hct},
+		{name: "plasma_water", n: &r.PlasmaWater}, {name: "red_cell_water", n: &r.RedCellWater},
+		{name: "qf", n: &r.QF}, {name: "sieving", n: &r.Sieving}, {name: "sweep", empty: &sweep},
 	}
+	if !decodeFlat(request, fields[:]) {
+		return false
+	}
+	if sweep {
+		r.Sweep = new(SweepRequest)
+	}
+	return true
 }
 
 // respondCompare encodes a successful compare: with fast, directly when it
@@ -227,13 +250,14 @@ func decodeCopy[T any](request []byte, v *T) error {
 
 // appendCompare appends r as the general encoder writes it, member by
 // member in the order of the types' fields, and reports true; it declines
-// (false) an answer with sweeps or packed series, or with a number that
-// is not finite (the general encoder refuses it). A member added to
+// (false) an answer with sweeps (the series as JSON), a packed series
+// name that JSON escapes, or a number that is not finite (the general
+// encoder refuses it). A member added to
 // CompareResponse, core.Operating, core.WholeBlood, core.Filtration,
 // core.Comparison or core.Performance must be added here too, and to
 // answerMembers: TestAppendCompareMembers fails until it is.
 func appendCompare(b []byte, r *CompareResponse) ([]byte, bool) {
-	if r.Sweeps != nil || r.Packed != nil || !answerKnown {
+	if r.Sweeps != nil || !answerKnown {
 		return nil, false
 	}
 	w := numberWriter{b: b, finite: true}
@@ -265,13 +289,43 @@ func appendCompare(b []byte, r *CompareResponse) ([]byte, bool) {
 	w.member(`,"ntu":`, r.NTU)
 	w.member(`,"flow_ratio":`, r.FlowRatio)
 	w.member(`,"qbw":`, r.QBW)
+	if p := r.Packed; p != nil {
+		w.b = append(w.b, `,"packed":{"points":`...)
+		w.b = strconv.AppendInt(w.b, int64(p.Points), 10)
+		if p.Series == nil {
+			w.b = append(w.b, `,"series":null}`...)
+		} else {
+			w.b = append(w.b, `,"series":[`...)
+			for k, name := range p.Series {
+				if !plainName(name) {
+					return nil, false // one the general encoder escapes
+				}
+				if k > 0 {
+					w.b = append(w.b, ',')
+				}
+				w.b = append(append(append(w.b, '"'), name...), '"')
+			}
+			w.b = append(w.b, "]}"...)
+		}
+	}
 	w.b = append(w.b, '}')
 	return w.b, w.finite
 }
 
+// plainName reports whether s is written in JSON as it is, between
+// quotes: letters, digits, '.', '_' and '-' only.
+func plainName(s string) bool {
+	for i := range len(s) {
+		if c := s[i]; !('a' <= c && c <= 'z' || 'A' <= c && c <= 'Z' || '0' <= c && c <= '9' || c == '.' || c == '_' || c == '-') {
+			return false
+		}
+	}
+	return true
+}
+
 // answerMembers are the members appendCompare writes, by their JSON
-// paths, in order (sweeps and packed aside: an answer with either goes to
-// the general encoder).
+// paths, in order (sweeps aside: an answer with them goes to the general
+// encoder).
 var answerMembers = []string{
 	"ok", "input.qb", "input.qd", "input.koa", "input.cbi", "input.cdi",
 	"input.blood.hct", "input.blood.plasma_water", "input.blood.red_cell_water",
@@ -283,6 +337,7 @@ var answerMembers = []string{
 	"cocurrent.cbo", "cocurrent.cdo", "cocurrent.transfer_rate",
 	"cocurrent.log_mean_difference", "cocurrent.clearance_ceiling", "cocurrent.dialysance_ceiling",
 	"countercurrent_gain", "countercurrent_gain_percent", "ntu", "flow_ratio", "qbw",
+	"packed.points", "packed.series",
 }
 
 // answerKnown is whether answerMembers are all the members of the answer's
@@ -294,7 +349,7 @@ var answerKnown = slices.Equal(jsonMembers(reflect.TypeFor[CompareResponse](), "
 // jsonMembers lists the JSON paths of the members of struct type t that
 // are not structs themselves, as the encoder writes them: fields of
 // embedded structs without a tag promoted, structs and pointers to structs
-// entered, "sweeps" and "packed" left out.
+// entered, "sweeps" left out.
 func jsonMembers(t reflect.Type, prefix string) []string {
 	var paths []string
 	for i := range t.NumField() {
@@ -305,7 +360,7 @@ func jsonMembers(t reflect.Type, prefix string) []string {
 			ft = ft.Elem()
 		}
 		switch {
-		case name == "-" || !f.IsExported() && !f.Anonymous || prefix+name == "sweeps" || prefix+name == "packed":
+		case name == "-" || !f.IsExported() && !f.Anonymous || prefix+name == "sweeps":
 		case f.Anonymous && name == "" && ft.Kind() == reflect.Struct:
 			paths = append(paths, jsonMembers(ft, prefix)...)
 		case ft.Kind() == reflect.Struct:

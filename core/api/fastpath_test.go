@@ -42,12 +42,12 @@ func sameBothWays(t testing.TB, request []byte) bool {
 		}
 	}
 	var req CompareRequest
-	fields := req.flatFields()
-	return decodeFlat(request, fields[:])
+	return req.decodeFast(request)
 }
 
 func TestFastPathPageRequest(t *testing.T) {
-	for _, r := range []string{pageRequest, routineRequestForFastPath, " \t\r\n" + pageRequest + "\n"} {
+	chart := strings.TrimSuffix(pageRequest, "}") + `,"sweep":{}}` // with the chart series
+	for _, r := range []string{pageRequest, routineRequestForFastPath, " \t\r\n" + pageRequest + "\n", chart} {
 		if !sameBothWays(t, []byte(r)) {
 			t.Errorf("decodeFlat(%s) declined the page's request: the fast path is not used", r)
 		}
@@ -144,6 +144,7 @@ func FuzzFastPath(f *testing.F) {
 		f.Add(randomCompareRequest(rng))
 	}
 	f.Add([]byte(pageRequest))
+	f.Add([]byte(strings.TrimSuffix(pageRequest, "}") + `,"sweep":{}}`))
 	f.Add([]byte(`{"qb":300,"qd":500,"koa":800,"hct":32,"qf":10,"sieving":0.6}`))
 	f.Fuzz(func(t *testing.T, request []byte) {
 		sameBothWays(t, request)
@@ -200,6 +201,9 @@ func randomCompareRequest(rng *rand.Rand) []byte {
 		s += []string{"}", "x", "{}", " 1", ","}[rng.IntN(5)]
 	case 2:
 		s = strings.Replace(s, "}", `,"sweep":{"points":3}}`, 1)
+	case 3, 4, 5:
+		// the page's chart request, or near it
+		s = strings.Replace(s, "}", `,"sweep":`+[]string{"{}", "{ }", "{\n}", "null", "[]", "{}}"}[rng.IntN(6)]+"}", 1)
 	}
 	return []byte(s)
 }
@@ -250,8 +254,8 @@ func randomValue(rng *rand.Rand, k int) string {
 // TestAppendCompareMembers fills every member of an answer with a value
 // that is not zero, through reflection, so that a member added to the
 // answer's types shows here even when no request sets it, and wants the
-// general encoder's bytes from appendCompare. Sweeps and Packed are left
-// nil: an answer with either goes to the general encoder.
+// general encoder's bytes from appendCompare. Sweeps is left nil: an
+// answer with sweeps goes to the general encoder.
 func TestAppendCompareMembers(t *testing.T) {
 	if got := jsonMembers(reflect.TypeFor[CompareResponse](), ""); !slices.Equal(got, answerMembers) {
 		t.Fatalf("the answer's members are %q,\nappendCompare writes %q (answerMembers): add the new member to both, in fastpath.go", got, answerMembers)
@@ -260,7 +264,7 @@ func TestAppendCompareMembers(t *testing.T) {
 	for i := range 200 {
 		var r CompareResponse
 		fill(reflect.ValueOf(&r).Elem(), rng, i%2 == 0)
-		r.Sweeps, r.Packed = nil, nil
+		r.Sweeps = nil
 		want, err := json.Marshal(&r)
 		if err != nil {
 			t.Fatal(err)
@@ -281,8 +285,19 @@ func TestAppendCompareMembers(t *testing.T) {
 	if _, ok := appendCompare(nil, &CompareResponse{OK: true, Sweeps: &core.Sweeps{}}); ok {
 		t.Errorf("appendCompare with sweeps: accepted, want declined")
 	}
-	if _, ok := appendCompare(nil, &CompareResponse{OK: true, Packed: &Packing{}}); ok {
-		t.Errorf("appendCompare with packed series: accepted, want declined")
+	for _, name := range []string{`a"b`, `a\b`, "a<b", "a&b", "é", "a\nb", ""} {
+		r := CompareResponse{OK: true, Packed: &Packing{Points: 3, Series: []string{"qb.x", name}}}
+		want, _ := json.Marshal(&r)
+		if got, ok := appendCompare(nil, &r); ok && !bytes.Equal(got, want) {
+			t.Errorf("appendCompare with the series name %q = %s, want %s or declined", name, got, want)
+		}
+	}
+	for _, series := range [][]string{nil, {}, packedSeries} {
+		r := CompareResponse{OK: true, Packed: &Packing{Points: 101, Series: series}}
+		want, _ := json.Marshal(&r)
+		if got, ok := appendCompare(nil, &r); !ok || !bytes.Equal(got, want) {
+			t.Errorf("appendCompare with the series %q = %s, %v, want %s", series, got, ok, want)
+		}
 	}
 }
 
