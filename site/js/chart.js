@@ -1,14 +1,54 @@
 // chart.js: a small SVG line chart. It draws the numbers it is given and
 // computes none of its own beyond placing them on the axes.
+//
+// A redraw keeps the chart's elements and changes only what differs: grid
+// lines, tick labels, axis titles, lines (one <path> each), labels and
+// markers get new attributes or text only where a value moved, and
+// elements are added or removed only when their number changes (more or
+// fewer ticks, say). A series is any array-like of numbers (an Array or a
+// Float64Array: only indexing and length are used).
 
 const NS = 'http://www.w3.org/2000/svg';
 const BOX = { width: 640, height: 270, left: 58, right: 96, top: 14, bottom: 46 };
 
-function el(name, attrs, text) {
-  const node = document.createElementNS(NS, name);
-  for (const [k, v] of Object.entries(attrs)) node.setAttribute(k, String(v));
-  if (text !== undefined) node.textContent = text;
-  return node;
+// The chart's layers, in painting order: each is a <g> made once.
+const LAYERS = ['grid', 'ticks', 'axes', 'titles', 'ceilings', 'vertical-lines', 'vertical-labels', 'series', 'end-labels', 'point-line', 'points'];
+const drawn = new WeakMap(); // svg -> its layers
+
+// set gives node the attributes in attrs that differ from what it has.
+// Numbers are coordinates, written to a tenth of a unit (of 640).
+function set(node, attrs) {
+  for (const [k, v] of Object.entries(attrs)) {
+    const text = typeof v === 'number' ? tenths(v) : v;
+    if (node.getAttribute(k) !== text) node.setAttribute(k, text);
+  }
+}
+
+function setText(node, text) {
+  if (node.textContent !== text) node.textContent = text;
+}
+
+// children returns group's first count children, all of element name,
+// making or removing elements as needed.
+function children(group, count, name) {
+  while (group.childElementCount > count) group.lastElementChild.remove();
+  while (group.childElementCount < count) group.append(document.createElementNS(NS, name));
+  return group.children;
+}
+
+// layersOf returns svg's layers by name, made the first time (which also
+// clears what an earlier version of the page drew there).
+function layersOf(svg) {
+  let layers = drawn.get(svg);
+  if (layers) return layers;
+  layers = {};
+  for (const name of LAYERS) {
+    layers[name] = document.createElementNS(NS, 'g');
+    layers[name].dataset.layer = name;
+  }
+  svg.replaceChildren(...Object.values(layers));
+  drawn.set(svg, layers);
+  return layers;
 }
 
 // ticks returns round tick values covering [lo, hi].
@@ -30,68 +70,120 @@ function axisTicks(hi, count = 5) {
   return t;
 }
 
-// drawChart fills svg. spec: {x: [], xLabel, yLabel, series: [{values,
-// className, label}], ceilings: [{values, label}], point: {x, ys: []}}.
-// Optional: a series may have its own x; xRange [min, max] and yMax fix
-// the axes (values beyond yMax are clipped at the top); verticals
-// [{x, label}] draws vertical ceiling lines labelled at the top;
-// endLabels: false leaves out the labels at the lines' right ends (and
-// their margin).
+// tenths writes v to one decimal, as v.toFixed(1) does (bar the rounding
+// of exact halves) but several times faster: a line of 101 points has 202.
+function tenths(v) {
+  const t = Math.round(v * 10);
+  const a = Math.abs(t);
+  const text = `${(a - (a % 10)) / 10}.${a % 10}`;
+  return t < 0 ? `-${text}` : text;
+}
+
+// largest returns the largest value of the lines, at least floor.
+function largest(lines, floor) {
+  let m = floor;
+  for (const line of lines) {
+    const v = line.values;
+    for (let i = 0; i < v.length; i++) if (v[i] > m) m = v[i];
+  }
+  return m;
+}
+
+// drawFrame draws the grid, tick labels, axes and axis titles.
+function drawFrame(layers, f) {
+  const { left, top, plotW, plotH, px, py, yTicks, xTicks } = f;
+  const n = yTicks.length;
+  const grid = children(layers.grid, n + xTicks.length, 'line');
+  const labels = children(layers.ticks, n + xTicks.length, 'text');
+  yTicks.forEach((t, i) => {
+    set(grid[i], { class: 'grid', x1: left, x2: left + plotW, y1: py(t), y2: py(t) });
+    set(labels[i], { x: left - 6, y: py(t) + 4, 'text-anchor': 'end' });
+    setText(labels[i], String(t));
+  });
+  xTicks.forEach((t, i) => {
+    set(grid[n + i], { class: 'grid', x1: px(t), x2: px(t), y1: top, y2: top + plotH });
+    set(labels[n + i], { x: px(t), y: top + plotH + 18, 'text-anchor': 'middle' });
+    setText(labels[n + i], String(t));
+  });
+  const [yAxis, xAxis] = children(layers.axes, 2, 'line');
+  set(yAxis, { class: 'axis', x1: left, x2: left, y1: top, y2: top + plotH });
+  set(xAxis, { class: 'axis', x1: left, x2: left + plotW, y1: top + plotH, y2: top + plotH });
+  const [xTitle, yTitle] = children(layers.titles, 2, 'text');
+  set(xTitle, { x: left + plotW / 2, y: BOX.height - 6, 'text-anchor': 'middle' });
+  setText(xTitle, f.xLabel);
+  set(yTitle, { x: 14, y: top + plotH / 2, 'text-anchor': 'middle', transform: `rotate(-90 14 ${top + plotH / 2})` });
+  setText(yTitle, f.yLabel);
+}
+
+// drawChart draws spec into svg. spec: {x, xLabel, yLabel, series:
+// [{values, className, label}], ceilings: [{values, label}], point: {x,
+// ys: []}}, where x and values are array-likes of numbers. Optional: a
+// series may have its own x; xRange [min, max] and yMax fix the axes
+// (values beyond yMax are clipped at the top); verticals [{x, label}] draws
+// vertical ceiling lines labelled at the top; endLabels: false leaves out
+// the labels at the lines' right ends (and their margin).
 export function drawChart(svg, spec) {
-  svg.replaceChildren();
+  const layers = layersOf(svg);
   const { left, top, bottom, width, height } = BOX;
   const right = spec.endLabels === false ? 16 : BOX.right;
   const plotW = width - left - right;
   const plotH = height - top - bottom;
   const xs = spec.x;
   const ceilings = spec.ceilings ?? [];
-  const all = [...spec.series, ...ceilings].flatMap((s) => Array.from(s.values)); // values: any array-like
   const [xMin, xMax] = spec.xRange ?? [xs[0], xs[xs.length - 1]];
-  const yTicks = axisTicks(spec.yMax ?? Math.max(...all, 1) * 1.02);
+  const yTicks = axisTicks(spec.yMax ?? largest([...spec.series, ...ceilings], 1) * 1.02);
   const yMax = yTicks[yTicks.length - 1];
   const px = (x) => left + ((x - xMin) / (xMax - xMin)) * plotW;
   const py = (y) => top + plotH - (y / yMax) * plotH;
 
-  for (const t of yTicks) {
-    svg.append(el('line', { class: 'grid', x1: left, x2: left + plotW, y1: py(t), y2: py(t) }));
-    svg.append(el('text', { x: left - 6, y: py(t) + 4, 'text-anchor': 'end' }, String(t)));
-  }
-  for (const t of ticks(xMin, xMax)) {
-    svg.append(el('line', { class: 'grid', x1: px(t), x2: px(t), y1: top, y2: top + plotH }));
-    svg.append(el('text', { x: px(t), y: top + plotH + 18, 'text-anchor': 'middle' }, String(t)));
-  }
-  svg.append(el('line', { class: 'axis', x1: left, x2: left, y1: top, y2: top + plotH }));
-  svg.append(el('line', { class: 'axis', x1: left, x2: left + plotW, y1: top + plotH, y2: top + plotH }));
-  svg.append(el('text', { x: left + plotW / 2, y: height - 6, 'text-anchor': 'middle' }, spec.xLabel));
-  svg.append(el('text', { x: 14, y: top + plotH / 2, 'text-anchor': 'middle', transform: `rotate(-90 14 ${top + plotH / 2})` }, spec.yLabel));
+  drawFrame(layers, { left, top, plotW, plotH, px, py, yTicks, xTicks: ticks(xMin, xMax), xLabel: spec.xLabel, yLabel: spec.yLabel });
 
-  const path = (values, x = xs) => Array.from(values, (y, i) => `${i ? 'L' : 'M'}${px(x[i]).toFixed(1)} ${py(Math.min(y, yMax)).toFixed(1)}`).join('');
+  const path = (values, x) => {
+    let d = '';
+    for (let i = 0; i < values.length; i++) d += `${i ? 'L' : 'M'}${tenths(px(x[i]))} ${tenths(py(Math.min(values[i], yMax)))}`;
+    return d;
+  };
   const labels = [];
-  for (const c of ceilings) {
-    svg.append(el('path', { class: 'ceiling', d: path(c.values) }));
+  const ceilingPaths = children(layers.ceilings, ceilings.length, 'path');
+  ceilings.forEach((c, i) => {
+    set(ceilingPaths[i], { class: 'ceiling', d: path(c.values, xs) });
     labels.push({ y: py(c.values[c.values.length - 1]), text: c.label });
-  }
-  (spec.verticals ?? []).forEach((v, i) => {
-    if (!(v.x >= xMin && v.x <= xMax)) return;
-    svg.append(el('line', { class: 'ceiling', x1: px(v.x), x2: px(v.x), y1: top, y2: top + plotH, 'data-vertical': v.label }));
-    svg.append(el('text', { x: px(v.x) - 4, y: top + 14 + 15 * i, 'text-anchor': 'end', class: 'vertical-label' }, v.label));
   });
-  for (const s of spec.series) {
-    svg.append(el('path', { class: `series ${s.className}`, d: path(s.values, s.x ?? xs), 'data-series': s.label }));
+
+  const verticals = (spec.verticals ?? []).map((v, i) => ({ ...v, i })).filter((v) => v.x >= xMin && v.x <= xMax);
+  const verticalLines = children(layers['vertical-lines'], verticals.length, 'line');
+  const verticalLabels = children(layers['vertical-labels'], verticals.length, 'text');
+  verticals.forEach((v, k) => {
+    const x = px(v.x);
+    set(verticalLines[k], { class: 'ceiling', x1: x, x2: x, y1: top, y2: top + plotH, 'data-vertical': v.label });
+    set(verticalLabels[k], { x: x - 4, y: top + 14 + 15 * v.i, 'text-anchor': 'end', class: 'vertical-label' });
+    setText(verticalLabels[k], v.label);
+  });
+
+  const seriesPaths = children(layers.series, spec.series.length, 'path');
+  spec.series.forEach((s, i) => {
+    set(seriesPaths[i], { class: `series ${s.className}`, d: path(s.values, s.x ?? xs), 'data-series': s.label });
     labels.push({ y: py(s.values[s.values.length - 1]), text: s.label });
-  }
+  });
+
   if (spec.endLabels === false) labels.length = 0;
   // Line-end labels, pushed apart so that none overlaps its neighbour.
   labels.sort((a, b) => a.y - b.y);
+  const endLabels = children(layers['end-labels'], labels.length, 'text');
   let previous = -Infinity;
-  for (const label of labels) {
+  labels.forEach((label, i) => {
     const y = Math.max(label.y + 4, previous + 15);
-    svg.append(el('text', { x: left + plotW + 6, y, class: 'end-label' }, label.text));
+    set(endLabels[i], { x: left + plotW + 6, y, class: 'end-label' });
+    setText(endLabels[i], label.text);
     previous = y;
-  }
-  if (spec.point && spec.point.x >= xMin && spec.point.x <= xMax) {
-    const x = px(spec.point.x);
-    svg.append(el('line', { class: 'point-line', x1: x, x2: x, y1: top, y2: top + plotH }));
-    for (const y of spec.point.ys) svg.append(el('circle', { class: 'point', cx: x, cy: py(Math.min(y, yMax)), r: 6 }));
+  });
+
+  const point = spec.point && spec.point.x >= xMin && spec.point.x <= xMax ? spec.point : null;
+  const pointLine = children(layers['point-line'], point ? 1 : 0, 'line');
+  const points = children(layers.points, point ? point.ys.length : 0, 'circle');
+  if (point) {
+    const x = px(point.x);
+    set(pointLine[0], { class: 'point-line', x1: x, x2: x, y1: top, y2: top + plotH });
+    point.ys.forEach((y, i) => set(points[i], { class: 'point', cx: x, cy: py(Math.min(y, yMax)), r: 6 }));
   }
 }
