@@ -42,7 +42,7 @@ export function mountCompare(root, engine) {
   function draw() {
     if (!last) return;
     const s = last.sweeps[axis];
-    caption.textContent = AXES[axis].title;
+    if (caption.textContent !== AXES[axis].title) caption.textContent = AXES[axis].title;
     drawChart(chart, {
       x: s.x,
       xLabel: AXES[axis].label,
@@ -59,20 +59,26 @@ export function mountCompare(root, engine) {
     });
   }
 
+  // showState marks the results ok, or in error and stale. It writes only
+  // a change: an input that keeps the state leaves the container alone.
+  function showState(state) {
+    if (results.dataset.state === state) return;
+    results.dataset.state = state;
+    results.classList.toggle('stale', state === 'error');
+  }
+
   function update() {
     const response = engine.call('compare', { ...readForm(form), sweep: {} });
     if (!response.ok) {
       showError(form, response.error);
-      results.classList.add('stale');
-      results.dataset.state = 'error';
+      showState('error');
       return;
     }
     showError(form, null);
-    results.classList.remove('stale');
-    results.dataset.state = 'ok';
+    showState('ok');
     last = response;
     renderOutputs(results, response);
-    bloodNote.hidden = !response.input.blood;
+    if (bloodNote.hidden === Boolean(response.input.blood)) bloodNote.hidden = !response.input.blood;
     draw();
   }
 

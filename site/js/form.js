@@ -24,8 +24,10 @@ export function fillForm(form, values) {
 // that name. A field fed by several inputs (a [minimum, maximum] pair) has
 // its own [data-error-for] slot, and its inputs carry data-field="FIELD".
 export function showError(form, error) {
-  for (const slot of form.querySelectorAll('[data-error-for]')) slot.textContent = '';
-  for (const input of form.querySelectorAll('input[name]')) input.removeAttribute('aria-invalid');
+  // Only slots and inputs that show an error are touched: an input with no
+  // error to clear then changes nothing on the page but its results.
+  for (const slot of form.querySelectorAll('[data-error-for]')) if (slot.firstChild) slot.textContent = '';
+  for (const input of form.querySelectorAll('input[aria-invalid]')) input.removeAttribute('aria-invalid');
   if (!error) return;
   const input = error.field ? form.querySelector(`input[name="${error.field}"]`) : null;
   const slot = error.field ? form.querySelector(`[data-error-for="${error.field}"]`) : null;

@@ -13,13 +13,41 @@ export function at(data, path) {
   return path.split('.').reduce((obj, key) => (obj == null ? undefined : obj[key]), data);
 }
 
+// How each output shows its value, read from its attributes once.
+const shown = new WeakMap();
+
+function howShown(out) {
+  let how = shown.get(out);
+  if (!how) {
+    how = {
+      keys: out.dataset.out.split('.'),
+      digits: Number(out.dataset.digits ?? 1),
+      options: { percent: out.hasAttribute('data-percent'), signed: out.hasAttribute('data-signed') },
+    };
+    shown.set(out, how);
+  }
+  return how;
+}
+
+// renderOutputs fills every output under root from data. An output whose
+// text and value are unchanged is left alone, so that the browser lays out
+// again only what changed; data-chars holds the length of the text, which
+// style.css uses to give a view's numbers boxes of their own.
 export function renderOutputs(root, data) {
   for (const out of root.querySelectorAll('output[data-out]')) {
-    const value = at(data, out.dataset.out);
-    out.textContent = formatNumber(value, Number(out.dataset.digits ?? 1), {
-      percent: out.hasAttribute('data-percent'),
-      signed: out.hasAttribute('data-signed'),
-    });
-    out.dataset.value = typeof value === 'number' ? String(value) : '';
+    const how = howShown(out);
+    let value = data;
+    for (const key of how.keys) value = value == null ? undefined : value[key];
+    const text = formatNumber(value, how.digits, how.options);
+    const full = typeof value === 'number' ? String(value) : '';
+    if (out.getAttribute('data-value') !== full) out.setAttribute('data-value', full);
+    const node = out.firstChild;
+    const single = node !== null && node.nodeType === Node.TEXT_NODE && node.nextSibling === null;
+    if (single ? node.data === text : out.textContent === text) continue;
+    const chars = String(text.length);
+    if (out.getAttribute('data-chars') !== chars) out.setAttribute('data-chars', chars);
+    // Changing the text node's data keeps the node: cheaper than a new one.
+    if (single) node.data = text;
+    else out.textContent = text;
   }
 }

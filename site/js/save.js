@@ -111,7 +111,7 @@ export function mountSave(dialog, ctx) {
     bar.append(note, opener);
     section.prepend(bar);
     section.addEventListener('input', () => {
-      note.textContent = '';
+      if (note.firstChild) note.textContent = '';
     });
   }
 }
