@@ -79,20 +79,23 @@ func TestBenchBrowser(t *testing.T) {
 	}
 	fmt.Printf("  input to updated results and charts  median %6.2f ms  p95 %6.2f ms  (targets 8 ms and 16 ms; %d inputs)\n", quantile(times, 0.5), quantile(times, 0.95), len(times))
 	// The share of the calculation: the same request as the view makes,
-	// JSON.stringify, the bridge call and JSON.parse, as engine.js does.
+	// JSON.stringify, the bridge call with the series buffer, JSON.parse
+	// and the series unpacked, as engine.js does.
 	calls := eval[[]float64](p, fmt.Sprintf(`(async () => {
+		const { unpack } = await import('./js/engine.js');
+		const series = new Uint8Array(clearkit.packedBytes);
 		const form = document.querySelector('section.view[data-view="compare"] form');
 		const times = [];
 		for (let i = 0; i < %d; i++) {
 			await new Promise((r) => setTimeout(r, 0));
 			const request = { ...Object.fromEntries([...form.querySelectorAll('input[name]')].map((e) => [e.name, e.value.trim()])), qb: String(250 + (i %% 100)), sweep: {} };
 			const t0 = performance.now();
-			JSON.parse(clearkit.compare(JSON.stringify(request)));
+			unpack(JSON.parse(clearkit.compare(JSON.stringify(request), series)), series);
 			times.push(performance.now() - t0);
 		}
 		return times.slice(60);
 	})()`, benchInputs+60))
-	fmt.Printf("    of which the calculation call       median %6.2f ms  p95 %6.2f ms  (stringify, bridge, parse)\n", quantile(calls, 0.5), quantile(calls, 0.95))
+	fmt.Printf("    of which the calculation call       median %6.2f ms  p95 %6.2f ms  (stringify, bridge, parse, unpack)\n", quantile(calls, 0.5), quantile(calls, 0.95))
 	// The share of the chart: pressing the chart's axis button redraws it
 	// from the last result without a calculation.
 	draws := eval[[]float64](p, fmt.Sprintf(`(async () => {
