@@ -372,6 +372,23 @@ var floatEdges = []float64{
 	247.95456556655517, 2.6666666666666665, 0.6, 187.5,
 }
 
+// floatCount is how many random floats a test checks: n, short under
+// -short, or CLEARKIT_FLOATS when set.
+func floatCount(t *testing.T, n, short int) int {
+	t.Helper()
+	if s := os.Getenv("CLEARKIT_FLOATS"); s != "" {
+		v, err := strconv.Atoi(s)
+		if err != nil {
+			t.Fatalf("CLEARKIT_FLOATS=%q: %v", s, err)
+		}
+		return v
+	}
+	if testing.Short() {
+		return short
+	}
+	return n
+}
+
 // TestAppendJSONFloat checks appendJSONFloat against the general encoder
 // (goccy/go-json) and against encoding/json, the reference for how JSON
 // writes a float64: on the edge values, every power of ten and of two and
@@ -379,16 +396,7 @@ var floatEdges = []float64{
 // integers; 300 000 by default, CLEARKIT_FLOATS when set, such as
 // CLEARKIT_FLOATS=50000000 for a long run).
 func TestAppendJSONFloat(t *testing.T) {
-	n := 300_000
-	if testing.Short() {
-		n = 20_000
-	}
-	if s := os.Getenv("CLEARKIT_FLOATS"); s != "" {
-		var err error
-		if n, err = strconv.Atoi(s); err != nil {
-			t.Fatalf("CLEARKIT_FLOATS=%q: %v", s, err)
-		}
-	}
+	n := floatCount(t, 300_000, 20_000)
 	check := func(x float64) bool {
 		if math.IsInf(x, 0) {
 			return true // past the largest float
@@ -475,16 +483,7 @@ func BenchmarkCompareFastPath(b *testing.B) {
 // it must never decline a number that is not an integer: the carry it
 // declines cannot happen there.
 func TestShortestFraction(t *testing.T) {
-	n := 1_000_000
-	if testing.Short() {
-		n = 50_000
-	}
-	if s := os.Getenv("CLEARKIT_FLOATS"); s != "" {
-		var err error
-		if n, err = strconv.Atoi(s); err != nil {
-			t.Fatalf("CLEARKIT_FLOATS=%q: %v", s, err)
-		}
-	}
+	n := floatCount(t, 1_000_000, 50_000)
 	inRange := func(x float64) bool {
 		a := math.Abs(x)
 		return a >= 0x1p-6 && a < 0x1p53 && a != math.Trunc(a)
