@@ -91,7 +91,7 @@ func compare(request []byte, packed, fast bool) ([]byte, []float64) {
 		// What respond would refuse in the JSON (see respond).
 		return failure(fieldErr("", "internal error: result could not be encoded")), nil
 	}
-	return respondCompare(&resp, false), s.Packed()
+	return respondCompare(&resp, fast), s.Packed()
 }
 
 var packedSeries = core.PackedSeries[:]
