@@ -38,7 +38,7 @@ func TestBenchBrowser(t *testing.T) {
 	if _, err := chromedp.Call(p.ctx, emulation.SetCPUThrottlingRate, emulation.SetCPUThrottlingRateParams{Rate: benchThrottle}); err != nil {
 		t.Fatal(err)
 	}
-	var ready, wasmDone, domDone []float64
+	var ready, wasmDone, domDone, compiled, started, viewsDone []float64
 	for i := range benchReloads + 1 {
 		p.reload()
 		if !eval[bool](p, `Boolean(navigator.serviceWorker.controller)`) {
@@ -50,10 +50,14 @@ func TestBenchBrowser(t *testing.T) {
 		ready = append(ready, eval[float64](p, `performance.getEntriesByName('clearkit:ready')[0].startTime`))
 		wasmDone = append(wasmDone, eval[float64](p, `performance.getEntriesByName(new URL('clearkit.wasm', location.href).href)[0].responseEnd`))
 		domDone = append(domDone, eval[float64](p, `performance.getEntriesByType('navigation')[0].domContentLoadedEventEnd`))
+		compiled = append(compiled, eval[float64](p, `performance.getEntriesByName('clearkit:compiled')[0].startTime`))
+		started = append(started, eval[float64](p, `performance.getEntriesByName('clearkit:started')[0].startTime`))
+		viewsDone = append(viewsDone, eval[float64](p, `performance.getEntriesByName('clearkit:views')[0].startTime`))
 	}
 	fmt.Printf("bench: browser, Chromium headless, CPU throttled %dx, service worker cache warm, %d reloads:\n", benchThrottle, benchReloads)
 	fmt.Printf("  navigation to first computed result  median %6.1f ms  p95 %6.1f ms  (target median <= 600 ms)\n", quantile(ready, 0.5), quantile(ready, 0.95))
 	fmt.Printf("    of which DOMContentLoaded           median %6.1f ms, clearkit.wasm received %6.1f ms\n", quantile(domDone, 0.5), quantile(wasmDone, 0.5))
+	fmt.Printf("    module compiled %6.1f ms, Go started %6.1f ms, views computed and drawn %6.1f ms (medians)\n", quantile(compiled, 0.5), quantile(started, 0.5), quantile(viewsDone, 0.5))
 
 	times := eval[[]float64](p, fmt.Sprintf(`(async () => {
 		const view = document.querySelector('section.view[data-view="compare"]');

@@ -19,7 +19,9 @@ export async function loadEngine(url = 'clearkit.wasm') {
     }
     result = await WebAssembly.instantiate(await response.arrayBuffer(), go.importObject);
   }
+  performance.mark('clearkit:compiled'); // start-up marks: see site/bench_browser_test.go
   go.run(result.instance); // runs Go's main until it waits for calls
+  performance.mark('clearkit:started');
   const api = globalThis.clearkit;
   if (!api) {
     throw new Error('the calculation module did not start');

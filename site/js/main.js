@@ -7,11 +7,15 @@ import { mountCheck } from './check-view.js';
 import { startOffline } from './offline.js';
 import { views, showView, reopenLastView } from './views.js';
 import { startLog } from './log-start.js';
+import { openStore } from './store.js';
 
 const status = document.getElementById('engine-status');
 
 async function start() {
   let version = 'unknown';
+  // The record store opens while the module compiles (openStore never
+  // rejects: without IndexedDB it gives a store for this tab only).
+  const storeOpening = openStore();
   try {
     const engine = await loadEngine();
     version = engine.version;
@@ -23,6 +27,7 @@ async function start() {
       tab.addEventListener('click', () => showView(tab.dataset.view));
     }
     status.textContent = 'Ready';
+    performance.mark('clearkit:views');
   } catch (err) {
     status.textContent = `The calculator could not start: ${err.message}. Reload the page; if it persists, rebuild or reinstall ClearKit.`;
     document.body.dataset.engine = 'failed';
@@ -31,7 +36,7 @@ async function start() {
   // registered above (the log works even when the calculator failed, so
   // that records can still be exported).
   try {
-    await startLog(version);
+    await startLog(version, storeOpening);
   } catch (err) {
     document.querySelector('#view-log [data-log-storage]').textContent = `The service log could not start: ${err.message}. Reload the page.`;
     document.body.dataset.log = 'failed';
