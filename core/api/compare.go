@@ -2,7 +2,6 @@ package api
 
 import (
 	"fmt"
-	"math"
 
 	"clearkit/core"
 )
@@ -96,13 +95,21 @@ func compare(request []byte, packed, fast bool) ([]byte, []float64) {
 
 var packedSeries = core.PackedSeries[:]
 
+// finite reports whether every value of xs is finite, for values of
+// magnitude below 1e307 (the chart series' are below 1e9): a sum that
+// holds an infinity or a NaN is not finite, and times 0 it is NaN, while
+// a finite sum times 0 is 0. Eight values a step, with one test, take a
+// third of the time of a test per value under WebAssembly.
 func finite(xs []float64) bool {
-	for _, x := range xs {
-		if math.IsInf(x, 0) || math.IsNaN(x) {
-			return false
-		}
+	s := 0.0
+	for len(xs) >= 8 {
+		s += (xs[0] + xs[1] + xs[2] + xs[3] + xs[4] + xs[5] + xs[6] + xs[7]) * 0
+		xs = xs[8:]
 	}
-	return true
+	for _, x := range xs {
+		s += x * 0
+	}
+	return s == 0
 }
 
 // operating reads the fields of an operating point.
