@@ -114,15 +114,28 @@ func Ceiling(a Arrangement, qb, qd float64) float64 {
 type pair struct{ counter, co, counterCeiling, coCeiling float64 }
 
 func dialysancePair(qb, qd, koa float64) pair {
+	return pairFlows(qb, qd).at(koa)
+}
+
+// flowPair is what dialysancePair computes from the flows alone, so that
+// a series along KoA computes it once (the same operations on the same
+// flows: the same values).
+type flowPair struct{ cmin, oneMinusCr, cr, co float64 }
+
+func pairFlows(qb, qd float64) flowPair {
 	cmin, cmax, oneMinusCr := capacities(qb, qd)
-	ntu := koa / cmin
 	cr := cmin / cmax
-	co := 1 / (1 + cr)
-	p := pair{counter: cmin, co: co * cmin, counterCeiling: cmin, coCeiling: co * cmin}
+	return flowPair{cmin: cmin, oneMinusCr: oneMinusCr, cr: cr, co: 1 / (1 + cr)}
+}
+
+// at is dialysancePair at these flows and koa.
+func (f flowPair) at(koa float64) pair {
+	ntu := koa / f.cmin
+	p := pair{counter: f.cmin, co: f.co * f.cmin, counterCeiling: f.cmin, coCeiling: f.co * f.cmin}
 	if !math.IsInf(ntu, 1) {
-		t := ntu * phi(ntu*oneMinusCr)
-		p.counter = min(1, t/(1+cr*t)) * cmin
-		p.co = -math.Expm1(-ntu*(1+cr)) / (1 + cr) * cmin
+		t := ntu * phi(ntu*f.oneMinusCr)
+		p.counter = min(1, t/(1+f.cr*t)) * f.cmin
+		p.co = -math.Expm1(-ntu*(1+f.cr)) / (1 + f.cr) * f.cmin
 	}
 	return p
 }

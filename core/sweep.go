@@ -167,6 +167,7 @@ func series(s *Series, r Range, v sweptVariable, op Operating) {
 		water = op.Blood.WaterFraction()
 	}
 	qb, qd, koa := op.model().QB, op.QD, op.KoA
+	flows := pairFlows(qb, qd) // along KoA the flows stay
 	for i := range n {
 		x := r.Min + float64(i)*step
 		if i == n-1 {
@@ -183,7 +184,10 @@ func series(s *Series, r Range, v sweptVariable, op Operating) {
 		default:
 			koa = x
 		}
-		p := dialysancePair(qb, qd, koa)
+		if v != sweptKoA {
+			flows = pairFlows(qb, qd)
+		}
+		p := flows.at(koa)
 		s.X[i] = x
 		s.Countercurrent[i], s.CountercurrentCeiling[i] = p.counter*f, p.counterCeiling*f
 		s.Cocurrent[i], s.CocurrentCeiling[i] = p.co*f, p.coCeiling*f
