@@ -298,39 +298,42 @@ func appendCompare(b []byte, r *CompareResponse) ([]byte, bool) {
 		case len(p.Series) == len(packedSeries) && &p.Series[0] == &packedSeries[0]:
 			w.b = append(w.b, packedSeriesJSON...) // the names of every answer
 		default:
-			w.b = append(w.b, `,"series":[`...)
-			for k, name := range p.Series {
-				if !plainName(name) {
-					return nil, false // one the general encoder escapes
-				}
-				if k > 0 {
-					w.b = append(w.b, ',')
-				}
-				w.b = append(append(append(w.b, '"'), name...), '"')
+			var ok bool
+			if w.b, ok = appendSeriesNames(w.b, p.Series); !ok {
+				return nil, false // one the general encoder escapes
 			}
-			w.b = append(w.b, "]}"...)
 		}
 	}
 	w.b = append(w.b, '}')
 	return w.b, w.finite
 }
 
-// packedSeriesJSON is the "series" member of the packed answer's names,
-// packedSeries, and the end of "packed", as appendCompare writes them: written once rather than
-// checked and written name by name in every answer.
+// packedSeriesJSON is the "series" member of packedSeries, the names of
+// every packed answer, with the end of "packed": written once, not name by
+// name in every answer.
 var packedSeriesJSON = func() []byte {
-	b := []byte(`,"series":[`)
-	for k, name := range packedSeries {
+	b, ok := appendSeriesNames(nil, packedSeries)
+	if !ok {
+		panic("api: a packed series name is not plain")
+	}
+	return b
+}()
+
+// appendSeriesNames appends `,"series":[names...]}` and reports true, or
+// false (appending part of it) if a name is not plain.
+func appendSeriesNames(b []byte, names []string) ([]byte, bool) {
+	b = append(b, `,"series":[`...)
+	for k, name := range names {
 		if !plainName(name) {
-			panic("api: a packed series name is not plain: " + name)
+			return b, false
 		}
 		if k > 0 {
 			b = append(b, ',')
 		}
 		b = append(append(append(b, '"'), name...), '"')
 	}
-	return append(b, "]}"...)
-}()
+	return append(b, "]}"...), true
+}
 
 // plainName reports whether s is written in JSON as it is, between
 // quotes: letters, digits, '.', '_' and '-' only.
@@ -413,19 +416,6 @@ func (w *numberWriter) member(name string, x float64) {
 }
 
 func (w *numberWriter) number(x float64) {
-	if u := uint32(x); float64(u) == x && u < 1000 && !(u == 0 && math.Signbit(x)) {
-		// 0 to 999, the answer's most frequent integers (flows, 1, 0),
-		// digit by digit.
-		switch {
-		case u < 10:
-			w.b = append(w.b, byte('0'+u))
-		case u < 100:
-			w.b = append(w.b, byte('0'+u/10), byte('0'+u%10))
-		default:
-			w.b = append(w.b, byte('0'+u/100), byte('0'+u/10%10), byte('0'+u%10))
-		}
-		return
-	}
 	if isSmallInteger(x) {
 		w.b = appendJSONFloat(w.b, x) // cheap: not worth a copy
 		return
@@ -478,8 +468,15 @@ func (w *numberWriter) performance(p *core.Performance) {
 func appendJSONFloat(b []byte, x float64) []byte {
 	if isSmallInteger(x) {
 		i := int64(x)
-		if i == 0 && math.Signbit(x) {
+		switch {
+		case i == 0 && math.Signbit(x):
 			return append(b, "-0"...)
+		case 0 <= i && i < 10: // 0 to 999, the answers' most frequent (flows, 1, 0), digit by digit
+			return append(b, byte('0'+i))
+		case 0 <= i && i < 100:
+			return append(b, byte('0'+i/10), byte('0'+i%10))
+		case 0 <= i && i < 1000:
+			return append(b, byte('0'+i/100), byte('0'+i/10%10), byte('0'+i%10))
 		}
 		var buf [64]byte
 		start := appendWhole(&buf, uint64(max(i, -i)), i < 0)
