@@ -39,8 +39,28 @@ func ParseArrangement(field, s string) (Arrangement, error) {
 // computed from the difference of the flows so that it keeps full relative
 // accuracy when QB and QD are nearly equal.
 func capacities(qb, qd float64) (cmin, cmax, oneMinusCr float64) {
-	cmin, cmax = min(qb, qd), max(qb, qd)
+	cmin, cmax = order(qb, qd)
 	return cmin, cmax, (cmax - cmin) / cmax
+}
+
+// order returns the smaller and the larger of two flows: min and max for
+// the model's flows, which are positive numbers. (Go's min and max of
+// floats order NaN and signed zeros, which the flows never are, and are
+// calls under WebAssembly, where the chart series make some 600 of them.)
+func order(a, b float64) (lo, hi float64) {
+	if a < b {
+		return a, b
+	}
+	return b, a
+}
+
+// atMostOne returns min(1, x), the same for every x (NaN stays NaN, -0
+// stays -0), without the call Go's min is under WebAssembly.
+func atMostOne(x float64) float64 {
+	if x > 1 {
+		return 1
+	}
+	return x
 }
 
 // Effectiveness returns the fraction eps of the largest possible transfer
@@ -75,7 +95,7 @@ func Effectiveness(a Arrangement, qb, qd, koa float64) float64 {
 	// at Cr = 1 and reduces there to NTU/(1+NTU). Near saturation the
 	// quotient can round to just above 1; the ceiling is exact.
 	t := ntu * phi(ntu*oneMinusCr)
-	return min(1, t/(1+cr*t))
+	return atMostOne(t / (1 + cr*t))
 }
 
 // phi returns (1 - e^-x)/x for x >= 0, with phi(0) = 1.
@@ -89,7 +109,8 @@ func phi(x float64) float64 {
 // Dialysance returns D = eps * min(QB, QD) in mL/min: the solute transfer
 // rate per unit of inlet concentration difference (CBi - CDi).
 func Dialysance(a Arrangement, qb, qd, koa float64) float64 {
-	return Effectiveness(a, qb, qd, koa) * min(qb, qd)
+	cmin, _ := order(qb, qd)
+	return Effectiveness(a, qb, qd, koa) * cmin
 }
 
 // Ceiling returns the dialysance the arrangement approaches as KoA grows
@@ -99,7 +120,7 @@ func Ceiling(a Arrangement, qb, qd float64) float64 {
 	// The same roundings as Dialysance at KoA = +Inf: 1 x Cmin
 	// counter-current, (1/(1+Cr)) Cmin co-current (QB QD/(QB+QD) without
 	// overflow of QB*QD), so that Dialysance never exceeds it at finite KoA.
-	cmin, cmax := min(qb, qd), max(qb, qd)
+	cmin, cmax := order(qb, qd)
 	if a == Cocurrent {
 		return 1 / (1 + cmin/cmax) * cmin
 	}
@@ -134,7 +155,7 @@ func (f flowPair) at(koa float64) pair {
 	p := pair{counter: f.cmin, co: f.co * f.cmin, counterCeiling: f.cmin, coCeiling: f.co * f.cmin}
 	if !math.IsInf(ntu, 1) {
 		t := ntu * phi(ntu*f.oneMinusCr)
-		p.counter = min(1, t/(1+f.cr*t)) * f.cmin
+		p.counter = atMostOne(t/(1+f.cr*t)) * f.cmin
 		p.co = -math.Expm1(-ntu*(1+f.cr)) / (1 + f.cr) * f.cmin
 	}
 	return p
