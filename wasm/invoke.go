@@ -31,9 +31,15 @@ func invoke(e api.Entry, args []safejs.Value) (response []byte) {
 		return failed("the request could not be read: " + err.Error())
 	}
 	if len(args) == 1 || e.Packed == nil {
-		return e.Call([]byte(request))
+		if e.Append == nil {
+			return e.Call([]byte(request))
+		}
+		response = e.Append(buffer[:0], []byte(request))
+		buffer = response[:0]
+		return response
 	}
-	response, series := e.Packed([]byte(request))
+	response, series := e.Packed(buffer[:0], []byte(request))
+	buffer = response[:0]
 	if len(series) == 0 {
 		return response
 	}
@@ -49,6 +55,13 @@ func invoke(e api.Entry, args []safejs.Value) (response []byte) {
 	}
 	return response
 }
+
+// buffer holds the response of the last entry with Append or Packed.
+// One serves every call: the calls come one at a time (JavaScript runs Go
+// on the page's thread and waits for it), and the response is copied into
+// a JavaScript string as the call returns (see handler), before the next
+// call can write here. It grows to the largest response asked for.
+var buffer = make([]byte, 0, 1024)
 
 // failed encodes a failure of the request as a whole.
 func failed(message string) []byte {

@@ -127,3 +127,46 @@ func BenchmarkBridgeComparePacked(b *testing.B) {
 		call(b, "compare", `{"qb":300,"qd":500,"koa":800,"sweep":{}}`, buf)
 	}
 }
+
+// TestResponseBufferReused: compare writes every answer into one buffer
+// (invoke's buffer), so each call's string must be its own answer, whole,
+// whatever came before it: a long answer (the series as JSON text) then
+// shorter ones, a failure, a packed answer and the general path, in turn,
+// twice, each against the same request answered natively.
+func TestResponseBufferReused(t *testing.T) {
+	buf := packedBuffer(t, api.MaxPackedBytes)
+	requests := []struct {
+		request string
+		packed  bool
+	}{
+		{`{"qb":300,"qd":500,"koa":800,"sweep":{}}`, false},
+		{`{"qb":"300","qd":"500","koa":"800","cbi":"","cdi":""}`, false},
+		{`{"qb":-1,"qd":500,"koa":800}`, false},
+		{`{"qb":450,"qd":"700,5","koa":1300,"sweep":{}}`, true},
+		{`{"qb":300,"qd":500,"koa":800,"sweep":{"points":3}}`, false},
+		{`{"QB":310,"qd":500,"koa":800}`, false}, // not flat as the page writes it: the general path
+		{`{"qb":300,"qd":500,"koa":800,"sweep":{}}`, true},
+	}
+	var answers []string
+	for round := range 2 {
+		for i, r := range requests {
+			var got string
+			var want []byte
+			if r.packed {
+				got = call(t, "compare", r.request, buf)
+				want, _ = api.ComparePacked(nil, []byte(r.request))
+			} else {
+				got = call(t, "compare", r.request)
+				want = api.Compare([]byte(r.request))
+			}
+			if got != string(want) {
+				t.Fatalf("round %d, compare(%s): got %.80s... (%d bytes), want %.80s... (%d bytes)", round, r.request, got, len(got), want, len(want))
+			}
+			if round == 0 {
+				answers = append(answers, got)
+			} else if got != answers[i] {
+				t.Errorf("compare(%s) changed between rounds", r.request)
+			}
+		}
+	}
+}

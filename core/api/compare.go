@@ -38,59 +38,78 @@ type CompareResponse struct {
 
 // Compare answers a CompareRequest.
 func Compare(request []byte) []byte {
-	response, _ := compare(request, false, true)
+	response, _ := compare(nil, request, false, true)
 	return response
 }
 
-// ComparePacked answers a CompareRequest like Compare, with the chart
-// series, when the request asks for them, returned apart from the JSON in
-// the order of core.PackedSeries (see Entry.Packed).
-func ComparePacked(request []byte) ([]byte, []float64) {
-	return compare(request, true, true)
+// AppendCompare is Compare with the response appended to dst, as
+// strconv's Append functions do: a caller that is done with each response
+// before it asks for the next (the bridge, which copies it into a
+// JavaScript string) can keep one buffer for all of them and spare an
+// allocation a call (see Entry.Append).
+func AppendCompare(dst, request []byte) []byte {
+	response, _ := compare(dst, request, false, true)
+	return response
 }
 
-// compare answers both; with fast false it takes the general decoder and
-// encoder only (see fastpath.go).
-func compare(request []byte, packed, fast bool) ([]byte, []float64) {
+// ComparePacked answers a CompareRequest like AppendCompare, with the
+// chart series, when the request asks for them, returned apart from the
+// JSON in the order of core.PackedSeries (see Entry.Packed).
+func ComparePacked(dst, request []byte) ([]byte, []float64) {
+	return compare(dst, request, true, true)
+}
+
+// compare answers all three, appending the response to dst; with fast
+// false it takes the general decoder and encoder only (see fastpath.go).
+func compare(dst, request []byte, packed, fast bool) ([]byte, []float64) {
 	var req CompareRequest
 	if !fast || !req.decodeFast(request) {
 		if err := decodeCopy(request, &req); err != nil {
-			return failure(err), nil
+			return appendTo(dst, failure(err)), nil
 		}
 	}
-	op, err := operating(req.QB, req.QD, req.KoA, req.CBi, req.CDi)
+	op, err := operating(&req.QB, &req.QD, &req.KoA, &req.CBi, &req.CDi)
 	if err != nil {
-		return failure(err), nil
+		return appendTo(dst, failure(err)), nil
 	}
 	if err := req.Conditions.apply(&op); err != nil {
-		return failure(err), nil
+		return appendTo(dst, failure(err)), nil
 	}
 	c, err := core.Compare(op)
 	if err != nil {
-		return failure(err), nil
+		return appendTo(dst, failure(err)), nil
 	}
 	resp := CompareResponse{OK: true, Input: op, Comparison: c}
 	if req.Sweep == nil {
-		return respondCompare(&resp, fast), nil
+		return respondCompare(dst, &resp, fast), nil
 	}
 	spec, err := req.Sweep.spec()
 	if err != nil {
-		return failure(err), nil
+		return appendTo(dst, failure(err)), nil
 	}
 	s, err := core.Sweep(op, spec)
 	if err != nil {
-		return failure(err), nil
+		return appendTo(dst, failure(err)), nil
 	}
 	if !packed {
 		resp.Sweeps = &s
-		return respondCompare(&resp, false), nil
+		return respondCompare(dst, &resp, false), nil
 	}
 	resp.Packed = &Packing{Points: s.Points(), Series: packedSeries}
 	if !finite(s.Packed()) {
 		// What respond would refuse in the JSON (see respond).
-		return failure(fieldErr("", "internal error: result could not be encoded")), nil
+		return appendTo(dst, failure(fieldErr("", "internal error: result could not be encoded"))), nil
 	}
-	return respondCompare(&resp, fast), s.Packed()
+	return respondCompare(dst, &resp, fast), s.Packed()
+}
+
+// appendTo returns dst with b appended: b itself when dst is empty, with
+// no copy.
+func appendTo(dst, b []byte) []byte {
+	if len(dst) == 0 {
+		return b
+	}
+	return append(dst, b...)
 }
 
 var packedSeries = core.PackedSeries[:]
@@ -113,7 +132,7 @@ func finite(xs []float64) bool {
 }
 
 // operating reads the fields of an operating point.
-func operating(qb, qd, koa, cbi, cdi Number) (op core.Operating, err error) {
+func operating(qb, qd, koa, cbi, cdi *Number) (op core.Operating, err error) {
 	if op.QB, err = qb.Required("qb"); err != nil {
 		return op, err
 	}

@@ -24,42 +24,41 @@ import (
 // bytes (the bad-input catalogue, the fuzz corpora, seeded random requests
 // and FuzzFastPath), and that the encoder writes every member of the answer.
 
-// flatField is a member of a flat request object: its JSON name as
-// documented and the Number it fills, or, for a member whose only value
-// read here is the empty object {} (compare's sweep), the flag it sets.
-type flatField struct {
-	name  string
-	n     *Number
-	empty *bool
+// maxFlatFields bounds the members of a flat request (the bits of
+// flatValues.seen).
+const maxFlatFields = 16
+
+// flatValues are the members decodeFlat found: bit k of seen is set when
+// the member names[k] was given, and at[k] holds the start and end of its
+// value in the request.
+type flatValues struct {
+	seen uint32
+	at   [maxFlatFields][2]uint32
 }
 
-// maxFlatFields bounds the fields of a flat request (the bits of seen).
-const maxFlatFields = 32
-
-// decodeFlat reads request into fields when request is a flat JSON object
-// whose every key is one of the fields' names, written exactly (no escape,
-// no other case) and at most once, and whose every value is null, a JSON
-// number, or a string of printable ASCII without escapes (or, for a field
-// with empty, the empty object), with only JSON
-// white space (space, tab, line feed, carriage return) between the tokens.
-// It then sets each field given to its value as written, which is what
-// the general decoder hands Number.UnmarshalJSON (the Numbers share
-// request's bytes, so request must not change while they are read), and
-// returns true. For
+// decodeFlat reads request into v when request is a flat JSON object
+// whose every key is one of names, written exactly (no escape, no other
+// case) and at most once, and whose every value is null, a JSON number, or
+// a string of printable ASCII without escapes (or, for the member
+// names[object], the empty object, its only value read here; object -1
+// for none), with only JSON white space (space, tab, line feed, carriage
+// return) between the tokens, and returns true. A value's bytes, as
+// written, are what the general decoder hands Number.UnmarshalJSON. For
 // any other request (larger than MaxRequestBytes, nested, unknown or
-// repeated keys, other values, malformed) it returns false and changes
-// nothing: decode then reads it, or says what is wrong with it.
-func decodeFlat(request []byte, fields []flatField) bool {
-	if len(request) > MaxRequestBytes || len(fields) > maxFlatFields {
+// repeated keys, other values, malformed) it returns false: decode then
+// reads it, or says what is wrong with it. Each key is looked for first
+// among names after the last one found, so that a request written in the
+// order of names (as the page writes it) finds each at the first try.
+func decodeFlat(request []byte, names []string, object int, v *flatValues) bool {
+	if len(request) > MaxRequestBytes || len(names) > maxFlatFields {
 		return false
 	}
-	var raw [maxFlatFields][]byte
-	var seen uint32
 	s := request
 	i := flatSpace(s, 0)
 	if i >= len(s) || s[i] != '{' {
 		return false
 	}
+	next := 0 // where the next key is looked for first
 	i = flatSpace(s, i+1)
 	if i < len(s) && s[i] == '}' {
 		i++
@@ -73,17 +72,19 @@ func decodeFlat(request []byte, fields []flatField) bool {
 			if end < 0 {
 				return false
 			}
+			key := s[i+1 : end-1]
 			k := -1
-			for j := range fields {
-				if fields[j].name == string(s[i+1:end-1]) {
-					k = j
+			for j := range names {
+				if c := (next + j) % len(names); names[c] == string(key) {
+					k = c
 					break
 				}
 			}
-			if k < 0 || seen&(1<<k) != 0 {
+			if k < 0 || v.seen&(1<<k) != 0 {
 				return false
 			}
-			seen |= 1 << k
+			v.seen |= 1 << k
+			next = k + 1
 			i = flatSpace(s, end)
 			if i >= len(s) || s[i] != ':' {
 				return false
@@ -94,7 +95,7 @@ func decodeFlat(request []byte, fields []flatField) bool {
 				return false
 			}
 			switch c := s[i]; {
-			case fields[k].empty != nil:
+			case k == object:
 				end = -1
 				if j := flatSpace(s, i+1); c == '{' && j < len(s) && s[j] == '}' {
 					end = j + 1
@@ -114,7 +115,7 @@ func decodeFlat(request []byte, fields []flatField) bool {
 			if end < 0 {
 				return false
 			}
-			raw[k] = s[i:end]
+			v.at[k] = [2]uint32{uint32(i), uint32(end)}
 			i = flatSpace(s, end)
 			if i >= len(s) {
 				return false
@@ -129,19 +130,7 @@ func decodeFlat(request []byte, fields []flatField) bool {
 			i = flatSpace(s, i+1)
 		}
 	}
-	if flatSpace(s, i) != len(s) {
-		return false
-	}
-	for k, f := range fields {
-		switch {
-		case seen&(1<<k) == 0:
-		case f.empty != nil:
-			*f.empty = true
-		default:
-			f.n.raw = raw[k]
-		}
-	}
-	return true
+	return flatSpace(s, i) == len(s)
 }
 
 // flatSpace returns the position of the first byte at or after i that is
@@ -204,38 +193,56 @@ func flatNumber(s []byte, i int) int {
 	return i
 }
 
+// compareFlat names the members of a flat compare request, in the order
+// the page writes them (site/js/compare-view.js), with the sweep, whose
+// only flat value is {} (the page's chart request), last.
+var compareFlat = [...]string{
+	"qb", "qd", "koa", "cbi", "cdi", "qf", "sieving", "hct", "plasma_water", "red_cell_water",
+	"sweep",
+}
+
 // decodeFast reads a flat compare request (decodeFlat) into r, whose
-// sweep may be given as {} (the page's chart request), and reports whether
-// it did; r is left as it was when not.
+// sweep may be given as {}, and reports whether it did; r is left as it
+// was when not. The Numbers share request's bytes, so request must not
+// change while they are read.
 func (r *CompareRequest) decodeFast(request []byte) bool {
-	var sweep bool
-	fields := [...]flatField{
-		{name: "qb", n: &r.QB}, {name: "qd", n: &r.QD}, {name: "koa", n: &r.KoA},
-		{name: "cbi", n: &r.CBi}, {name: "cdi", n: &r.CDi}, {name: "hct", n: &r.Hct},
-		{name: "plasma_water", n: &r.PlasmaWater}, {name: "red_cell_water", n: &r.RedCellWater},
-		{name: "qf", n: &r.QF}, {name: "sieving", n: &r.Sieving}, {name: "sweep", empty: &sweep},
-	}
-	if !decodeFlat(request, fields[:]) {
+	var v flatValues
+	const sweep = len(compareFlat) - 1
+	if !decodeFlat(request, compareFlat[:], sweep, &v) {
 		return false
 	}
-	if sweep {
+	numbers := [sweep]*Number{
+		&r.QB, &r.QD, &r.KoA, &r.CBi, &r.CDi, &r.QF, &r.Sieving, &r.Hct, &r.PlasmaWater, &r.RedCellWater,
+	}
+	for k, n := range numbers {
+		if v.seen&(1<<k) != 0 {
+			n.raw = request[v.at[k][0]:v.at[k][1]]
+		}
+	}
+	if v.seen&(1<<sweep) != 0 {
 		r.Sweep = new(SweepRequest)
 	}
 	return true
 }
 
-// respondCompare encodes a successful compare: with fast, directly when it
-// has no sweeps (appendCompare), and through respond otherwise. respond
-// gets a copy, so that r does not escape to the heap (an allocation costs
-// about as much as writing a few numbers under WebAssembly).
-func respondCompare(r *CompareResponse, fast bool) []byte {
+// respondCompare appends a successful compare to dst: with fast,
+// directly when it has no sweeps (appendCompare), and through respond
+// otherwise. respond gets a copy, so that r does not escape to the heap
+// (an allocation costs about as much as writing a few numbers under
+// WebAssembly). A dst without room gets a buffer of 1 KiB, which holds
+// the answer without its series.
+func respondCompare(dst []byte, r *CompareResponse, fast bool) []byte {
 	if fast {
-		if b, ok := appendCompare(make([]byte, 0, 1024), r); ok {
+		b := dst
+		if cap(b)-len(b) < 1024 {
+			b = append(make([]byte, 0, len(b)+1024), b...)
+		}
+		if b, ok := appendCompare(b, r); ok {
 			return b
 		}
 	}
 	c := *r
-	return respond(&c, nil)
+	return appendTo(dst, respond(&c, nil))
 }
 
 // decodeCopy is decode into a new value that is then copied to *v: the

@@ -22,8 +22,10 @@ import (
 
 // The fast path of compare (fastpath.go) must answer exactly as the
 // general path does, byte for byte, for every request: these tests send
-// the same request both ways (compare(request, packed, true) and
-// compare(request, packed, false)), as Compare and as ComparePacked.
+// the same request both ways (compare(dst, request, packed, true) and
+// compare(nil, request, packed, false)), as Compare and as ComparePacked;
+// the fast way appends to a dst that holds bytes already, as the bridge's
+// reused buffer does (after its [:0], with the last answer beyond len).
 
 // pageRequest is what the compare view sends: the form's texts as typed,
 // the empty conditions included (site/js/compare-view.js; the same request
@@ -35,8 +37,13 @@ const pageRequest = `{"qb":"300","qd":"500","koa":"800","cbi":"","cdi":"","qf":"
 func sameBothWays(t testing.TB, request []byte) bool {
 	t.Helper()
 	for _, packed := range []bool{false, true} {
-		fast, fastSeries := compare(request, packed, true)
-		general, generalSeries := compare(request, packed, false)
+		dst := append(make([]byte, 0, 2048), "kept"...)
+		fast, fastSeries := compare(dst, request, packed, true)
+		general, generalSeries := compare(nil, request, packed, false)
+		if !bytes.HasPrefix(fast, dst) {
+			t.Errorf("compare(%q, packed %v) did not keep dst %q: %.20s", clip(string(request)), packed, dst, fast)
+		}
+		fast = fast[len(dst):]
 		if !bytes.Equal(fast, general) || !slices.Equal(fastSeries, generalSeries) {
 			t.Errorf("compare(%q, packed %v):\nfast path    %s, %d series values\ngeneral path %s, %d series values", clip(string(request)), packed, fast, len(fastSeries), general, len(generalSeries))
 		}
@@ -249,6 +256,49 @@ func randomValue(rng *rand.Rand, k int) string {
 		return num
 	}
 	return `"` + num + `"`
+}
+
+// TestDecodeFastMembers gives each member of compareFlat alone (with the
+// sweep) a value of its own and wants it in the request field whose JSON
+// name it is, found through reflection: decodeFast's list of fields must
+// follow compareFlat's names, and name every member of the request type.
+func TestDecodeFastMembers(t *testing.T) {
+	fields := map[string]reflect.Value{}
+	var r CompareRequest
+	var walk func(v reflect.Value)
+	walk = func(v reflect.Value) {
+		for i := range v.NumField() {
+			f := v.Type().Field(i)
+			name, _, _ := strings.Cut(f.Tag.Get("json"), ",")
+			if f.Anonymous && name == "" {
+				walk(v.Field(i))
+				continue
+			}
+			fields[name] = v.Field(i)
+		}
+	}
+	walk(reflect.ValueOf(&r).Elem())
+	if len(fields) != len(compareFlat) {
+		t.Errorf("CompareRequest has %d members, compareFlat names %d: %q", len(fields), len(compareFlat), compareFlat)
+	}
+	for k, name := range compareFlat[:len(compareFlat)-1] {
+		value := fmt.Sprintf(`"%d.5"`, k+1)
+		request := fmt.Sprintf(`{"sweep":{},%q:%s}`, name, value)
+		r = CompareRequest{}
+		if !r.decodeFast([]byte(request)) {
+			t.Fatalf("decodeFast(%s) declined", request)
+		}
+		field, ok := fields[name]
+		if !ok {
+			t.Fatalf("compareFlat's %q is no member of CompareRequest", name)
+		}
+		if got := string(field.Addr().Interface().(*Number).raw); got != value {
+			t.Errorf("decodeFast(%s): %s = %s, want %s", request, name, got, value)
+		}
+		if r.Sweep == nil {
+			t.Errorf("decodeFast(%s): no sweep", request)
+		}
+	}
 }
 
 // TestAppendCompareMembers fills every member of an answer with a value
@@ -466,7 +516,7 @@ func BenchmarkCompareFastPath(b *testing.B) {
 				req := []byte(bc.request)
 				b.ReportAllocs()
 				for b.Loop() {
-					if resp, _ := compare(req, true, fast); !bytes.HasPrefix(resp, []byte(`{"ok":true`)) {
+					if resp, _ := compare(nil, req, true, fast); !bytes.HasPrefix(resp, []byte(`{"ok":true`)) {
 						b.Fatalf("compare(%s) = %s", req, resp)
 					}
 				}
@@ -567,7 +617,8 @@ func TestQuickNumber(t *testing.T) {
 		if !ok {
 			return
 		}
-		pv, pgiven, err := Number{raw: []byte(raw)}.parse("f")
+		n := Number{raw: []byte(raw)}
+		pv, pgiven, err := n.parse("f")
 		if err != nil || v != pv || given != pgiven || math.Signbit(v) != math.Signbit(pv) {
 			t.Errorf("quickNumber(%s) = %v, %v; Number.parse gives %v, %v, %v", raw, v, given, pv, pgiven, err)
 		}

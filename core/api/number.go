@@ -78,7 +78,7 @@ func isDecimal(s string) bool {
 // value returns the number and whether it was given at all. It works on
 // the raw bytes, so that an absent or empty field costs no allocation (the
 // page sends every field of its form, most of them empty).
-func (n Number) value(field string) (float64, bool, error) {
+func (n *Number) value(field string) (float64, bool, error) {
 	if v, given, ok := quickNumber(n.raw); ok {
 		return v, given, nil
 	}
@@ -87,7 +87,7 @@ func (n Number) value(field string) (float64, bool, error) {
 
 // parse is value for every form of number (quickNumber reads the common
 // ones, and agrees with it).
-func (n Number) parse(field string) (float64, bool, error) {
+func (n *Number) parse(field string) (float64, bool, error) {
 	raw := bytes.TrimSpace(n.raw)
 	if len(raw) == 0 || string(raw) == "null" {
 		return 0, false, nil
@@ -125,7 +125,7 @@ func (n Number) parse(field string) (float64, bool, error) {
 }
 
 // Required returns the number in field, or an error if it is absent.
-func (n Number) Required(field string) (float64, error) {
+func (n *Number) Required(field string) (float64, error) {
 	v, ok, err := n.value(field)
 	if err == nil && !ok {
 		err = fieldErr(field, "is required")
@@ -134,7 +134,7 @@ func (n Number) Required(field string) (float64, error) {
 }
 
 // Optional returns the number in field, or def if it is absent.
-func (n Number) Optional(field string, def float64) (float64, error) {
+func (n *Number) Optional(field string, def float64) (float64, error) {
 	v, ok, err := n.value(field)
 	if !ok {
 		v = def
