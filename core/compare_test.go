@@ -295,6 +295,49 @@ func TestSweepDefaults(t *testing.T) {
 	}
 }
 
+// SweepInto gives Sweep's values, bit for bit, whatever its storage held
+// (NaN here, as if from an earlier answer), computing into that storage
+// when it has room and leaving storage too small untouched; with
+// ultrafiltration too, which takes the other loop of the series.
+func TestSweepInto(t *testing.T) {
+	filtered := routine
+	filtered.QF, filtered.Sieving = 10, 1
+	for _, op := range []core.Operating{routine, filtered} {
+		for _, spec := range []core.SweepSpec{{}, {Points: 7}, {Points: core.MaxSweepPoints}} {
+			want, err := core.Sweep(op, spec)
+			if err != nil {
+				t.Fatalf("Sweep(%+v, %+v) error: %v", op, spec, err)
+			}
+			size := len(want.Packed())
+			for _, room := range []int{size, size + 5, size - 1} {
+				storage := make([]float64, room)
+				for i := range storage {
+					storage[i] = math.NaN()
+				}
+				got, err := core.SweepInto(storage[:0], op, spec)
+				if err != nil {
+					t.Fatalf("SweepInto(%d values, %+v, %+v) error: %v", room, op, spec, err)
+				}
+				for i, x := range got.Packed() {
+					if math.Float64bits(x) != math.Float64bits(want.Packed()[i]) {
+						t.Fatalf("SweepInto(%d values, %+v, %+v) value %d = %v, Sweep gives %v", room, op, spec, i, x, want.Packed()[i])
+					}
+				}
+				shared := room > 0 && &got.Packed()[0] == &storage[0]
+				if shared != (room >= size) {
+					t.Errorf("SweepInto(%d values for %d): computed into the storage %v, want %v", room, size, shared, room >= size)
+				}
+				if room < size && !math.IsNaN(storage[0]) {
+					t.Errorf("SweepInto(%d values for %d) wrote into storage without room", room, size)
+				}
+				if got.QB.X[0] != want.QB.X[0] || got.KoA.Cocurrent[len(got.KoA.Cocurrent)-1] != want.KoA.Cocurrent[len(want.KoA.Cocurrent)-1] {
+					t.Errorf("SweepInto(%d values, %+v, %+v): the series are not windows of its values", room, op, spec)
+				}
+			}
+		}
+	}
+}
+
 func TestSweepRanges(t *testing.T) {
 	for _, spec := range []core.SweepSpec{
 		{Points: core.MinSweepPoints, QB: &core.Range{Min: 100, Max: 400}},

@@ -63,6 +63,16 @@ func (s Sweeps) Points() int { return len(s.QB.X) }
 
 // Sweep computes the chart series around op.
 func Sweep(op Operating, spec SweepSpec) (Sweeps, error) {
+	return SweepInto(nil, op, spec)
+}
+
+// SweepInto is Sweep computing the series into storage when it has room
+// for them (len(PackedSeries) times the points, its capacity counts), and
+// into new storage when not: a caller done with each result before it asks
+// for the next (the WebAssembly bridge, which copies the series to the
+// page) keeps one and spares an allocation of some 12 KB a call. The
+// result shares storage.
+func SweepInto(storage []float64, op Operating, spec SweepSpec) (Sweeps, error) {
 	if err := op.Validate(); err != nil {
 		return Sweeps{}, err
 	}
@@ -89,7 +99,12 @@ func Sweep(op Operating, spec SweepSpec) (Sweeps, error) {
 	if err != nil {
 		return Sweeps{}, err
 	}
-	s := Sweeps{packed: make([]float64, len(PackedSeries)*n)}
+	size := len(PackedSeries) * n
+	if cap(storage) < size {
+		storage = make([]float64, size)
+	}
+	// series writes every value: storage needs no clearing.
+	s := Sweeps{packed: storage[:size]}
 	window := s.packed
 	for _, axis := range []struct {
 		series *Series

@@ -38,8 +38,11 @@ func invoke(e api.Entry, args []safejs.Value) (response []byte) {
 		buffer = response[:0]
 		return response
 	}
-	response, series := e.Packed(buffer[:0], []byte(request))
+	response, series := e.Packed(buffer[:0], seriesBuffer, []byte(request))
 	buffer = response[:0]
+	if cap(series) > cap(seriesBuffer) {
+		seriesBuffer = series[:0]
+	}
 	if len(series) == 0 {
 		return response
 	}
@@ -56,12 +59,17 @@ func invoke(e api.Entry, args []safejs.Value) (response []byte) {
 	return response
 }
 
-// buffer holds the response of the last entry with Append or Packed.
-// One serves every call: the calls come one at a time (JavaScript runs Go
-// on the page's thread and waits for it), and the response is copied into
-// a JavaScript string as the call returns (see handler), before the next
-// call can write here. It grows to the largest response asked for.
-var buffer = make([]byte, 0, 1024)
+// buffer holds the response of the last entry with Append or Packed, and
+// seriesBuffer its chart series. One of each serves every call: the calls
+// come one at a time (JavaScript runs Go on the page's thread and waits
+// for it), the series are copied to the page's Uint8Array in invoke, and
+// the response into a JavaScript string as the call returns (see
+// handler), before the next call can write here. Each grows to the
+// largest asked for.
+var (
+	buffer       = make([]byte, 0, 1024)
+	seriesBuffer []float64
+)
 
 // failed encodes a failure of the request as a whole.
 func failed(message string) []byte {

@@ -154,7 +154,7 @@ func TestResponseBufferReused(t *testing.T) {
 			var want []byte
 			if r.packed {
 				got = call(t, "compare", r.request, buf)
-				want, _ = api.ComparePacked(nil, []byte(r.request))
+				want, _ = api.ComparePacked(nil, nil, []byte(r.request))
 			} else {
 				got = call(t, "compare", r.request)
 				want = api.Compare([]byte(r.request))

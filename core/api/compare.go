@@ -38,7 +38,7 @@ type CompareResponse struct {
 
 // Compare answers a CompareRequest.
 func Compare(request []byte) []byte {
-	response, _ := compare(nil, request, false, true)
+	response, _ := compare(nil, nil, request, false, true)
 	return response
 }
 
@@ -48,20 +48,22 @@ func Compare(request []byte) []byte {
 // JavaScript string) can keep one buffer for all of them and spare an
 // allocation a call (see Entry.Append).
 func AppendCompare(dst, request []byte) []byte {
-	response, _ := compare(dst, request, false, true)
+	response, _ := compare(dst, nil, request, false, true)
 	return response
 }
 
 // ComparePacked answers a CompareRequest like AppendCompare, with the
 // chart series, when the request asks for them, returned apart from the
-// JSON in the order of core.PackedSeries (see Entry.Packed).
-func ComparePacked(dst, request []byte) ([]byte, []float64) {
-	return compare(dst, request, true, true)
+// JSON in the order of core.PackedSeries (see Entry.Packed), computed into
+// storage when it has room for them (core.SweepInto).
+func ComparePacked(dst []byte, storage []float64, request []byte) ([]byte, []float64) {
+	return compare(dst, storage, request, true, true)
 }
 
-// compare answers all three, appending the response to dst; with fast
-// false it takes the general decoder and encoder only (see fastpath.go).
-func compare(dst, request []byte, packed, fast bool) ([]byte, []float64) {
+// compare answers all three, appending the response to dst and computing
+// packed series into storage (when it has room); with fast false it takes
+// the general decoder and encoder only (see fastpath.go).
+func compare(dst []byte, storage []float64, request []byte, packed, fast bool) ([]byte, []float64) {
 	var req CompareRequest
 	if !fast || !req.decodeFast(request) {
 		if err := decodeCopy(request, &req); err != nil {
@@ -87,7 +89,10 @@ func compare(dst, request []byte, packed, fast bool) ([]byte, []float64) {
 	if err != nil {
 		return appendTo(dst, failure(err)), nil
 	}
-	s, err := core.Sweep(op, spec)
+	if !packed {
+		storage = nil // the answer's series are its own
+	}
+	s, err := core.SweepInto(storage, op, spec)
 	if err != nil {
 		return appendTo(dst, failure(err)), nil
 	}

@@ -40,8 +40,11 @@ type Entry struct {
 	// float64 values end to end, and the response's "packed" member names
 	// them in that order (see Packing). The bridge uses it when the page
 	// passes a buffer for them, which spares writing and parsing some 1500
-	// numbers as text on every input. Nil for the other entries.
-	Packed func(dst, request []byte) (response []byte, series []float64)
+	// numbers as text on every input. The series are computed into storage
+	// when it has room for them, so that the bridge, which copies them to
+	// the page before the next call, keeps that too. Nil for the other
+	// entries.
+	Packed func(dst []byte, storage []float64, request []byte) (response []byte, series []float64)
 }
 
 // MaxPackedBytes is the most bytes the packed series of any answer take:

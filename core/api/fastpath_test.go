@@ -22,10 +22,11 @@ import (
 
 // The fast path of compare (fastpath.go) must answer exactly as the
 // general path does, byte for byte, for every request: these tests send
-// the same request both ways (compare(dst, request, packed, true) and
-// compare(nil, request, packed, false)), as Compare and as ComparePacked;
+// the same request both ways (compare(dst, storage, request, packed, true) and
+// compare(nil, nil, request, packed, false)), as Compare and as ComparePacked;
 // the fast way appends to a dst that holds bytes already, as the bridge's
-// reused buffer does (after its [:0], with the last answer beyond len).
+// reused buffer does (after its [:0], with the last answer beyond len),
+// and computes the packed series into storage that holds other values.
 
 // pageRequest is what the compare view sends: the form's texts as typed,
 // the empty conditions included (site/js/compare-view.js; the same request
@@ -38,8 +39,11 @@ func sameBothWays(t testing.TB, request []byte) bool {
 	t.Helper()
 	for _, packed := range []bool{false, true} {
 		dst := append(make([]byte, 0, 2048), "kept"...)
-		fast, fastSeries := compare(dst, request, packed, true)
-		general, generalSeries := compare(nil, request, packed, false)
+		// storage for the packed series as a caller that keeps it has it:
+		// with the values of some earlier answer (here NaN) in it.
+		storage := slices.Repeat([]float64{math.NaN()}, len(core.PackedSeries)*core.MaxSweepPoints)
+		fast, fastSeries := compare(dst, storage, request, packed, true)
+		general, generalSeries := compare(nil, nil, request, packed, false)
 		if !bytes.HasPrefix(fast, dst) {
 			t.Errorf("compare(%q, packed %v) did not keep dst %q: %.20s", clip(string(request)), packed, dst, fast)
 		}
@@ -516,7 +520,7 @@ func BenchmarkCompareFastPath(b *testing.B) {
 				req := []byte(bc.request)
 				b.ReportAllocs()
 				for b.Loop() {
-					if resp, _ := compare(nil, req, true, fast); !bytes.HasPrefix(resp, []byte(`{"ok":true`)) {
+					if resp, _ := compare(nil, nil, req, true, fast); !bytes.HasPrefix(resp, []byte(`{"ok":true`)) {
 						b.Fatalf("compare(%s) = %s", req, resp)
 					}
 				}

@@ -19,7 +19,7 @@ import (
 // exactly, so the comparison is exact).
 func checkPacked(t *testing.T, e api.Entry, request, full []byte) {
 	t.Helper()
-	resp, series := e.Packed(nil, request)
+	resp, series := e.Packed(nil, nil, request)
 	var fullMembers map[string]json.RawMessage
 	if err := json.Unmarshal(full, &fullMembers); err != nil {
 		t.Fatalf("%s(%q) = %s: %v", e.Name, request, full, err)
@@ -88,7 +88,7 @@ func TestComparePacked(t *testing.T) {
 	} {
 		checkPacked(t, entry, []byte(request), api.Compare([]byte(request)))
 	}
-	resp, series := api.ComparePacked(nil, []byte(`{"qb":300,"qd":500,"koa":800,"sweep":{}}`))
+	resp, series := api.ComparePacked(nil, nil, []byte(`{"qb":300,"qd":500,"koa":800,"sweep":{}}`))
 	if !bytes.Contains(resp, []byte(`"packed":{"points":101,"series":["qb.x",`)) || len(series) != 15*101 {
 		t.Errorf("ComparePacked with sweep {} = %s and %d values, want 101 points of the 15 series", resp, len(series))
 	}
