@@ -46,9 +46,9 @@ type flatValues struct {
 // written, are what the general decoder hands Number.UnmarshalJSON. For
 // any other request (larger than MaxRequestBytes, nested, unknown or
 // repeated keys, other values, malformed) it returns false: decode then
-// reads it, or says what is wrong with it. Each key is looked for first
-// among names after the last one found, so that a request written in the
-// order of names (as the page writes it) finds each at the first try.
+// reads it, or says what is wrong with it. Each key is compared first
+// with the name after the last one found, so that a request written in the
+// order of names (as the page writes it) finds each at once.
 func decodeFlat(request []byte, names []string, object int, v *flatValues) bool {
 	if len(request) > MaxRequestBytes || len(names) > maxFlatFields {
 		return false
@@ -68,16 +68,23 @@ func decodeFlat(request []byte, names []string, object int, v *flatValues) bool 
 			if i >= len(s) || s[i] != '"' {
 				return false
 			}
-			end := flatString(s, i)
-			if end < 0 {
-				return false
+			k, end := -1, -1
+			if next < len(names) {
+				// the name expected next, and its closing quote
+				if n := names[next]; len(s)-i > len(n)+1 && string(s[i+1:i+1+len(n)]) == n && s[i+1+len(n)] == '"' {
+					k, end = next, i+len(n)+2
+				}
 			}
-			key := s[i+1 : end-1]
-			k := -1
-			for j := range names {
-				if c := (next + j) % len(names); names[c] == string(key) {
-					k = c
-					break
+			if k < 0 {
+				if end = flatString(s, i); end < 0 {
+					return false
+				}
+				key := s[i+1 : end-1]
+				for j := range names {
+					if names[j] == string(key) {
+						k = j
+						break
+					}
 				}
 			}
 			if k < 0 || v.seen&(1<<k) != 0 {
@@ -403,18 +410,10 @@ func jsonMembers(t reflect.Type, prefix string) []string {
 }
 
 // numberWriter appends JSON members and numbers to b. finite turns false
-// at the first number that is not finite. A number with the bits of one
-// of the last few written is copied from where it was written: the answer
-// repeats values (clearance, dialysance and transfer rate are equal when
-// CBi = 1 and CDi = 0).
+// at the first number that is not finite.
 type numberWriter struct {
 	b      []byte
 	finite bool
-	recent [4]struct {
-		bits       uint64
-		start, end int
-	}
-	next int // the slot of recent to write next
 }
 
 func (w *numberWriter) member(name string, x float64) {
@@ -422,47 +421,77 @@ func (w *numberWriter) member(name string, x float64) {
 	w.number(x)
 }
 
+// number appends x as appendJSONFloat does, taking the answer's most
+// frequent numbers, whole ones from 0 to 999 (flows, 1, 0) and fractions
+// of moderate size, without its calls (a call costs about as much as a
+// digit under WebAssembly).
 func (w *numberWriter) number(x float64) {
-	if isSmallInteger(x) {
-		w.b = appendJSONFloat(w.b, x) // cheap: not worth a copy
+	if i := int64(x); float64(i) == x && uint64(i) < 1000 && (i != 0 || !math.Signbit(x)) {
+		switch {
+		case i < 10:
+			w.b = append(w.b, byte('0'+i))
+		case i < 100:
+			w.b = append(w.b, byte('0'+i/10), byte('0'+i%10))
+		default:
+			w.b = append(w.b, byte('0'+i/100), byte('0'+i/10%10), byte('0'+i%10))
+		}
 		return
 	}
-	bits := math.Float64bits(x)
-	for k := range w.recent {
-		if r := &w.recent[k]; r.bits == bits && r.end > 0 {
-			w.b = append(w.b, w.b[r.start:r.end]...)
-			return
-		}
+	if b, ok := appendShortestFraction(w.b, x); ok {
+		w.b = b
+		return
 	}
-	if math.IsInf(x, 0) || math.IsNaN(x) {
+	if x-x != 0 { // NaN or an infinity (x - x is NaN there, 0 elsewhere)
 		w.finite = false
 		w.b = append(w.b, '0')
 		return
 	}
-	start := len(w.b)
 	w.b = appendJSONFloat(w.b, x)
-	r := &w.recent[w.next]
-	r.bits, r.start, r.end = bits, start, len(w.b)
-	w.next = (w.next + 1) % len(w.recent)
+}
+
+// span is where a number stands in numberWriter.b.
+type span struct{ start, end int }
+
+// spanned appends member name and x, and returns where x stands.
+func (w *numberWriter) spanned(name string, x float64) span {
+	w.b = append(w.b, name...)
+	start := len(w.b)
+	w.number(x)
+	return span{start, len(w.b)}
+}
+
+// repeat appends member name and x: a copy of prev's digits, which stand
+// at s, when x has prev's bits. The answer repeats values (clearance,
+// dialysance and transfer rate are equal when CBi = 1 and CDi = 0, and so
+// are the two ceilings), and a copy costs a fraction of a number's
+// shortest digits.
+func (w *numberWriter) repeat(name string, x, prev float64, s span) span {
+	if math.Float64bits(x) != math.Float64bits(prev) {
+		return w.spanned(name, x)
+	}
+	w.b = append(w.b, name...)
+	start := len(w.b)
+	w.b = append(w.b, w.b[s.start:s.end]...)
+	return span{start, len(w.b)}
+}
+
+func (w *numberWriter) performance(p *core.Performance) {
+	k := w.spanned(`{"clearance":`, p.Clearance)
+	d := w.repeat(`,"dialysance":`, p.Dialysance, p.Clearance, k)
+	w.member(`,"extraction_ratio":`, p.ExtractionRatio)
+	w.member(`,"cbo":`, p.BloodOutlet)
+	w.member(`,"cdo":`, p.DialysateOutlet)
+	w.repeat(`,"transfer_rate":`, p.TransferRate, p.Dialysance, d)
+	w.member(`,"log_mean_difference":`, p.LogMeanDifference)
+	c := w.spanned(`,"clearance_ceiling":`, p.ClearanceCeiling)
+	w.repeat(`,"dialysance_ceiling":`, p.DialysanceCeiling, p.ClearanceCeiling, c)
+	w.b = append(w.b, '}')
 }
 
 // isSmallInteger reports whether x is an integer of magnitude below 2^53.
 func isSmallInteger(x float64) bool {
 	i := int64(x)
 	return float64(i) == x && -1<<53 < i && i < 1<<53
-}
-
-func (w *numberWriter) performance(p *core.Performance) {
-	w.member(`{"clearance":`, p.Clearance)
-	w.member(`,"dialysance":`, p.Dialysance)
-	w.member(`,"extraction_ratio":`, p.ExtractionRatio)
-	w.member(`,"cbo":`, p.BloodOutlet)
-	w.member(`,"cdo":`, p.DialysateOutlet)
-	w.member(`,"transfer_rate":`, p.TransferRate)
-	w.member(`,"log_mean_difference":`, p.LogMeanDifference)
-	w.member(`,"clearance_ceiling":`, p.ClearanceCeiling)
-	w.member(`,"dialysance_ceiling":`, p.DialysanceCeiling)
-	w.b = append(w.b, '}')
 }
 
 // appendJSONFloat appends the finite x as encoding/json and goccy/go-json

@@ -319,6 +319,11 @@ func TestAppendCompareMembers(t *testing.T) {
 		var r CompareResponse
 		fill(reflect.ValueOf(&r).Elem(), rng, i%2 == 0)
 		r.Sweeps = nil
+		if i%3 == 0 { // the values the answer repeats, which numberWriter copies
+			for _, p := range []*core.Performance{&r.Countercurrent, &r.Cocurrent} {
+				p.Dialysance, p.TransferRate, p.DialysanceCeiling = p.Clearance, p.Clearance, p.ClearanceCeiling
+			}
+		}
 		want, err := json.Marshal(&r)
 		if err != nil {
 			t.Fatal(err)
@@ -328,12 +333,18 @@ func TestAppendCompareMembers(t *testing.T) {
 			t.Fatalf("appendCompare = %s, %v,\nwant %s (a member added to the answer must be added to appendCompare in fastpath.go)", got, ok, want)
 		}
 	}
-	// An answer with sweeps, or a number that is not finite, is declined.
+	// An answer with sweeps, or a number that is not finite, is declined,
+	// a repeated one too.
 	for _, x := range []float64{math.NaN(), math.Inf(1), math.Inf(-1)} {
 		r := CompareResponse{OK: true}
 		r.Cocurrent.LogMeanDifference = x
 		if _, ok := appendCompare(nil, &r); ok {
 			t.Errorf("appendCompare with log_mean_difference %g: accepted, want declined", x)
+		}
+		r = CompareResponse{OK: true}
+		r.Countercurrent.Clearance, r.Countercurrent.Dialysance = x, x
+		if _, ok := appendCompare(nil, &r); ok {
+			t.Errorf("appendCompare with clearance and dialysance %g: accepted, want declined", x)
 		}
 	}
 	if _, ok := appendCompare(nil, &CompareResponse{OK: true, Sweeps: &core.Sweeps{}}); ok {

@@ -68,7 +68,12 @@ func appendShortestFraction(b []byte, x float64) ([]byte, bool) {
 	// block number, so the loop below has one test per digit, and the
 	// digits go to a buffer indexed without a bounds test.
 	var buf [64]byte
-	i := appendWhole(&buf, whole, u>>63 != 0)
+	i := 23
+	if whole < 10 && u>>63 == 0 { // most of the answers' fractions: 0.8, 2.7
+		buf[23] = byte('0' + whole)
+	} else {
+		i = appendWhole(&buf, whole, u>>63 != 0)
+	}
 	buf[24] = '.'
 	// r < one = 2^60, so 10 r fits in 64 bits; below and above are below
 	// one until the loop ends (which it does by the 19th digit, when above
