@@ -1,7 +1,5 @@
 package core
 
-import "math"
-
 // minNormal is the smallest normal float64, 2^-1022.
 const minNormal = 0x1p-1022
 
@@ -132,7 +130,12 @@ func evaluateModel(a Arrangement, op Operating) Performance {
 }
 
 func evaluate(a Arrangement, op Operating) Performance {
-	d := Dialysance(a, op.QB, op.QD, op.KoA)
+	return performance(op, Dialysance(a, op.QB, op.QD, op.KoA), Ceiling(a, op.QB, op.QD))
+}
+
+// performance completes the Performance of dialysance d and its ceiling at
+// op (closed forms, no ultrafiltration).
+func performance(op Operating, d, ceiling float64) Performance {
 	w := d * (op.CBi - op.CDi)
 	p := Performance{
 		Clearance:         d * op.drivingFraction(),
@@ -140,14 +143,14 @@ func evaluate(a Arrangement, op Operating) Performance {
 		TransferRate:      w,
 		BloodOutlet:       op.CBi - w/op.QB,
 		DialysateOutlet:   op.CDi + w/op.QD,
-		DialysanceCeiling: Ceiling(a, op.QB, op.QD),
+		DialysanceCeiling: ceiling,
 	}
 	p.ExtractionRatio = p.Clearance / op.QB
 	p.ClearanceCeiling = p.DialysanceCeiling * op.drivingFraction()
 	// W/KoA is taken as (CBi - CDi) (D/KoA) so that a small W cannot
 	// underflow. Below the smallest normal KoA or NTU, D/KoA would be 0/0 or
 	// lose precision, and equals its KoA -> 0 limit, 1, to double precision.
-	if ntu := op.KoA / math.Min(op.QB, op.QD); op.KoA >= minNormal && ntu >= minNormal {
+	if cmin, _ := order(op.QB, op.QD); op.KoA >= minNormal && op.KoA/cmin >= minNormal {
 		p.LogMeanDifference = (op.CBi - op.CDi) * (d / op.KoA)
 	} else {
 		p.LogMeanDifference = op.CBi - op.CDi
@@ -179,14 +182,23 @@ func Compare(op Operating) (Comparison, error) {
 		return Comparison{}, err
 	}
 	m := op.model()
-	cc, co := evaluateModel(Countercurrent, m), evaluateModel(Cocurrent, m)
-	cmin, cmax, _ := capacities(m.QB, m.QD)
+	f := pairFlows(m.QB, m.QD)
+	var cc, co Performance
+	if m.QF == 0 {
+		// Both arrangements at once: evaluate's values, rounding for
+		// rounding (dialysancePair), in about half its time under
+		// WebAssembly, where the page asks for them on every input.
+		p := f.at(m.KoA)
+		cc, co = performance(m, p.counter, p.counterCeiling), performance(m, p.co, p.coCeiling)
+	} else {
+		cc, co = evaluateModel(Countercurrent, m), evaluateModel(Cocurrent, m)
+	}
 	c := Comparison{
 		Countercurrent: cc,
 		Cocurrent:      co,
 		Gain:           cc.Clearance - co.Clearance,
-		NTU:            m.KoA / cmin,
-		FlowRatio:      cmin / cmax,
+		NTU:            m.KoA / f.cmin,
+		FlowRatio:      f.cr,
 		QBW:            m.QB,
 	}
 	// The percentage is taken on dialysance so that it keeps its sign and

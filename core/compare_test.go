@@ -47,14 +47,20 @@ func TestCompareRoutine(t *testing.T) {
 	}
 }
 
-// Compare is Evaluate twice plus the derived numbers; the derived numbers
-// follow their definitions (compare.go doc comments) at every point of the
-// random grid of property_test.go, with used dialysate.
+// Compare is Evaluate twice plus the derived numbers, to the last bit
+// (it computes both arrangements at once); the derived numbers follow
+// their definitions (compare.go doc comments) at every point of the
+// random grid of property_test.go, with used dialysate, and whole blood at
+// every fourth.
 func TestCompareDefinitions(t *testing.T) {
 	r := newRand()
-	for range 1000 {
+	for i := range 4000 {
 		op := randomOperating(r)
 		op.CDi = 2 * op.CBi * r.Float64()
+		if i%4 == 0 {
+			b := core.DefaultWholeBlood(5 + 55*r.Float64())
+			op.Blood = &b
+		}
 		c, err := core.Compare(op)
 		if err != nil {
 			t.Fatalf("Compare(%+v) error: %v", op, err)
@@ -74,7 +80,8 @@ func TestCompareDefinitions(t *testing.T) {
 		if !veryclose(c.GainPercent, want) {
 			t.Errorf("Compare(%+v).GainPercent = %.17g, want %.17g", op, c.GainPercent, want)
 		}
-		cmin, cmax := math.Min(op.QB, op.QD), math.Max(op.QB, op.QD)
+		qb := op.BloodSideFlow()
+		cmin, cmax := math.Min(qb, op.QD), math.Max(qb, op.QD)
 		if !veryclose(c.NTU, op.KoA/cmin) || !veryclose(c.FlowRatio, cmin/cmax) {
 			t.Errorf("Compare(%+v): NTU %g, flow ratio %g, want %g and %g", op, c.NTU, c.FlowRatio, op.KoA/cmin, cmin/cmax)
 		}
