@@ -97,10 +97,12 @@ func compare(dst []byte, storage []float64, request []byte, packed, fast bool) (
 		return appendTo(dst, failure(err)), nil
 	}
 	if !packed {
-		resp.Sweeps = &s
+		sweeps := s // a copy that goes to the heap, in this case alone
+		resp.Sweeps = &sweeps
 		return respondCompare(dst, &resp, false), nil
 	}
-	resp.Packed = &Packing{Points: s.Points(), Series: packedSeries}
+	packing := Packing{Points: s.Points(), Series: packedSeries}
+	resp.Packed = &packing
 	if !finite(s.Packed()) {
 		// What respond would refuse in the JSON (see respond).
 		return appendTo(dst, failure(fieldErr("", "internal error: result could not be encoded"))), nil

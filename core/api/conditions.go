@@ -30,23 +30,16 @@ type WholeBloodFields struct {
 
 // read returns the blood, nil for an aqueous solution (hct absent). It
 // checks only the numbers' form; core validates their values.
-func (w WholeBloodFields) read() (*core.WholeBlood, error) {
+func (w *WholeBloodFields) read() (*core.WholeBlood, error) {
 	hct, whole, err := w.Hct.value("hct")
 	if err != nil {
 		return nil, err
 	}
 	if !whole {
-		for _, f := range []struct {
-			name string
-			n    Number
-		}{{"plasma_water", w.PlasmaWater}, {"red_cell_water", w.RedCellWater}} {
-			if _, given, err := f.n.value(f.name); err != nil {
-				return nil, err
-			} else if given {
-				return nil, fieldErr(f.name, "applies to whole blood only: give the haematocrit hct as well, or leave it out for an aqueous test solution")
-			}
+		if err := bloodOnly(&w.PlasmaWater, "plasma_water"); err != nil {
+			return nil, err
 		}
-		return nil, nil
+		return nil, bloodOnly(&w.RedCellWater, "red_cell_water")
 	}
 	b := core.DefaultWholeBlood(hct)
 	if b.PlasmaWater, err = w.PlasmaWater.Optional("plasma_water", core.DefaultPlasmaWater); err != nil {
@@ -58,9 +51,19 @@ func (w WholeBloodFields) read() (*core.WholeBlood, error) {
 	return &b, nil
 }
 
+// bloodOnly refuses a field of whole blood given for an aqueous solution.
+func bloodOnly(n *Number, field string) error {
+	if _, given, err := n.value(field); err != nil || !given {
+		return err
+	}
+	return fieldErr(field, "applies to whole blood only: give the haematocrit hct as well, or leave it out for an aqueous test solution")
+}
+
 // apply reads the conditions into op, an operating point whose own fields
-// are valid, and validates the result.
-func (c Conditions) apply(op *core.Operating) (err error) {
+// are valid, and validates the result. An aqueous solution without
+// ultrafiltration at the default sieving (the page's usual request) is
+// valid whenever op's own fields are, and is not checked again.
+func (c *Conditions) apply(op *core.Operating) (err error) {
 	if op.Blood, err = c.read(); err != nil {
 		return err
 	}
@@ -69,6 +72,9 @@ func (c Conditions) apply(op *core.Operating) (err error) {
 	}
 	if op.Sieving, err = c.Sieving.Optional("sieving", core.DefaultSieving); err != nil {
 		return err
+	}
+	if op.Blood == nil && op.QF == 0 && op.Sieving == core.DefaultSieving {
+		return nil
 	}
 	return op.Validate()
 }

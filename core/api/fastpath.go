@@ -227,17 +227,22 @@ func (r *CompareRequest) decodeFast(request []byte) bool {
 		}
 	}
 	if v.seen&(1<<sweep) != 0 {
-		r.Sweep = new(SweepRequest)
+		r.Sweep = &emptySweep
 	}
 	return true
 }
+
+// emptySweep is the sweep {} of every flat request, which is only read
+// (SweepRequest.spec): one for all, not one allocated a call.
+var emptySweep SweepRequest
 
 // respondCompare appends a successful compare to dst: with fast,
 // directly when it has no sweeps (appendCompare), and through respond
 // otherwise. respond gets a copy, so that r does not escape to the heap
 // (an allocation costs about as much as writing a few numbers under
-// WebAssembly). A dst without room gets a buffer of 1 KiB, which holds
-// the answer without its series.
+// WebAssembly, and more once the collections it brings on are counted;
+// what r points to does, as the copy takes it along). A dst without room
+// gets a buffer of 1 KiB, which holds the answer without its series.
 func respondCompare(dst []byte, r *CompareResponse, fast bool) []byte {
 	if fast {
 		b := dst

@@ -657,3 +657,70 @@ func TestQuickNumber(t *testing.T) {
 		check(raw, false)
 	}
 }
+
+// TestApplyAqueousShortcut: Conditions.apply does not validate again an
+// aqueous solution without ultrafiltration at the default sieving, since
+// operating has validated the same point. Every point operating accepts,
+// at the bounds of core and between them, must then pass Validate.
+func TestApplyAqueousShortcut(t *testing.T) {
+	flows := []float64{core.MinFlow, 0.5, 1, 300, 499.99, 500, core.MaxFlow}
+	koas := []float64{0, core.MinFlow, 800, core.MaxKoA}
+	concentrations := []float64{0, 1e-30, 1, 1e3, core.MaxConcentration}
+	n := func(x float64) Number { return Number{raw: strconv.AppendFloat(nil, x, 'g', -1, 64)} }
+	checked := 0
+	for _, qb := range flows {
+		for _, qd := range flows {
+			for _, koa := range koas {
+				for _, cbi := range concentrations {
+					for _, cdi := range concentrations {
+						QB, QD, KoA, CBi, CDi := n(qb), n(qd), n(koa), n(cbi), n(cdi)
+						op, err := operating(&QB, &QD, &KoA, &CBi, &CDi)
+						if err != nil {
+							continue
+						}
+						var c Conditions // all absent, as the page sends them
+						if err := c.apply(&op); err != nil {
+							t.Fatalf("apply to %+v: %v", op, err)
+						}
+						if op.Blood != nil || op.QF != 0 || op.Sieving != core.DefaultSieving {
+							t.Fatalf("apply of absent conditions gave %+v", op)
+						}
+						if err := op.Validate(); err != nil {
+							t.Errorf("apply skipped the check of %+v, which fails: %v", op, err)
+						}
+						checked++
+					}
+				}
+			}
+		}
+	}
+	if checked < 1000 {
+		t.Errorf("only %d valid points checked", checked)
+	}
+}
+
+// TestFastPathAllocations: the page's request, answered into a buffer
+// with room (as the bridge keeps one), allocates nothing, and the chart
+// request with storage for its series only its 32-byte "packed" member
+// (which the general encoder's copy of the answer takes along). Under
+// WebAssembly an allocation costs a few microseconds once the collections
+// it brings on are counted; an escape to the heap, such as a pointer into
+// the request that escape analysis cannot follow, shows here.
+func TestFastPathAllocations(t *testing.T) {
+	buf := make([]byte, 0, 4096)
+	storage := make([]float64, len(core.PackedSeries)*core.MaxSweepPoints)
+	page := []byte(pageRequest)
+	chart := []byte(strings.TrimSuffix(pageRequest, "}") + `,"sweep":{}}`)
+	for _, c := range []struct {
+		name string
+		call func()
+		want float64
+	}{
+		{"AppendCompare", func() { buf = AppendCompare(buf[:0], page) }, 0},
+		{"ComparePacked", func() { buf, _ = ComparePacked(buf[:0], storage, chart) }, 1},
+	} {
+		if n := testing.AllocsPerRun(100, c.call); n != c.want {
+			t.Errorf("%s of the page's request: %v allocations, want %v", c.name, n, c.want)
+		}
+	}
+}
