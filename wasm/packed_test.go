@@ -129,8 +129,9 @@ func BenchmarkBridgeComparePacked(b *testing.B) {
 }
 
 // TestResponseBufferReused: compare writes every answer into one buffer
-// (invoke's buffer), so each call's string must be its own answer, whole,
-// whatever came before it: a long answer (the series as JSON text) then
+// (invoke's buffer) and every packed series into one storage
+// (seriesBuffer), so each call's string and series must be its own,
+// whole, whatever came before it: a long answer (the series as JSON text) then
 // shorter ones, a failure, a packed answer and the general path, in turn,
 // twice, each against the same request answered natively.
 func TestResponseBufferReused(t *testing.T) {
@@ -154,7 +155,15 @@ func TestResponseBufferReused(t *testing.T) {
 			var want []byte
 			if r.packed {
 				got = call(t, "compare", r.request, buf)
-				want, _ = api.ComparePacked(nil, nil, []byte(r.request))
+				var series []float64
+				want, series = api.ComparePacked(nil, nil, []byte(r.request))
+				// the series, computed into the bridge's kept storage, as
+				// they reached the page's buffer
+				for k, x := range float64sOf(t, buf, len(series)) {
+					if math.Float64bits(x) != math.Float64bits(series[k]) {
+						t.Fatalf("round %d, compare(%s, buffer): series value %d = %v, want %v", round, r.request, k, x, series[k])
+					}
+				}
 			} else {
 				got = call(t, "compare", r.request)
 				want = api.Compare([]byte(r.request))

@@ -110,10 +110,12 @@ func compare(dst []byte, storage []float64, request []byte, packed, fast bool) (
 	return respondCompare(dst, &resp, fast), s.Packed()
 }
 
-// appendTo returns dst with b appended: b itself when dst is empty, with
-// no copy.
+// appendTo returns dst with b appended: b itself, with no copy, when dst
+// is empty and has no room for it. (An empty dst with room keeps its
+// storage, so that the bridge's buffer does not shrink to a failure's
+// size while the page's inputs are in error.)
 func appendTo(dst, b []byte) []byte {
-	if len(dst) == 0 {
+	if len(dst) == 0 && cap(dst) < len(b) {
 		return b
 	}
 	return append(dst, b...)

@@ -201,8 +201,9 @@ func flatNumber(s []byte, i int) int {
 }
 
 // compareFlat names the members of a flat compare request, in the order
-// the page writes them (site/js/compare-view.js), with the sweep, whose
-// only flat value is {} (the page's chart request), last.
+// the page writes them (the compare form's inputs in site/index.html, read
+// by readForm in site/js/form.js), with the sweep, whose only flat value
+// is {} (the page's chart request), last.
 var compareFlat = [...]string{
 	"qb", "qd", "koa", "cbi", "cdi", "qf", "sieving", "hct", "plasma_water", "red_cell_water",
 	"sweep",

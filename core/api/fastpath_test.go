@@ -52,6 +52,9 @@ func sameBothWays(t testing.TB, request []byte) bool {
 			t.Errorf("compare(%q, packed %v):\nfast path    %s, %d series values\ngeneral path %s, %d series values", clip(string(request)), packed, fast, len(fastSeries), general, len(generalSeries))
 		}
 	}
+	if !reflect.ValueOf(emptySweep).IsZero() {
+		t.Fatalf("compare(%q) wrote into emptySweep, which every flat sweep {} shares: %+v", clip(string(request)), emptySweep)
+	}
 	var req CompareRequest
 	return req.decodeFast(request)
 }
@@ -284,6 +287,22 @@ func TestDecodeFastMembers(t *testing.T) {
 	walk(reflect.ValueOf(&r).Elem())
 	if len(fields) != len(compareFlat) {
 		t.Errorf("CompareRequest has %d members, compareFlat names %d: %q", len(fields), len(compareFlat), compareFlat)
+	}
+	// Every member at once, in compareFlat's order, as the page writes them
+	// (each key found as the one expected next).
+	var all []string
+	for k, name := range compareFlat[:len(compareFlat)-1] {
+		all = append(all, fmt.Sprintf(`%q:"%d.5"`, name, k+1))
+	}
+	request := "{" + strings.Join(all, ",") + `,"sweep":{}}`
+	r = CompareRequest{}
+	if !r.decodeFast([]byte(request)) || r.Sweep == nil {
+		t.Fatalf("decodeFast(%s) declined, or lost the sweep", request)
+	}
+	for k, name := range compareFlat[:len(compareFlat)-1] {
+		if got, want := string(fields[name].Addr().Interface().(*Number).raw), fmt.Sprintf(`"%d.5"`, k+1); got != want {
+			t.Errorf("decodeFast(%s): %s = %s, want %s", request, name, got, want)
+		}
 	}
 	for k, name := range compareFlat[:len(compareFlat)-1] {
 		value := fmt.Sprintf(`"%d.5"`, k+1)
@@ -678,15 +697,18 @@ func TestApplyAqueousShortcut(t *testing.T) {
 						if err != nil {
 							continue
 						}
-						var c Conditions // all absent, as the page sends them
-						if err := c.apply(&op); err != nil {
-							t.Fatalf("apply to %+v: %v", op, err)
-						}
-						if op.Blood != nil || op.QF != 0 || op.Sieving != core.DefaultSieving {
-							t.Fatalf("apply of absent conditions gave %+v", op)
-						}
-						if err := op.Validate(); err != nil {
-							t.Errorf("apply skipped the check of %+v, which fails: %v", op, err)
+						// absent, as the page sends them, and given as the defaults
+						for _, c := range []Conditions{{}, {QF: n(0), Sieving: n(1)}, {QF: Number{raw: []byte(`"-0"`)}, Sieving: Number{raw: []byte(`"1,0"`)}}} {
+							o := op
+							if err := c.apply(&o); err != nil {
+								t.Fatalf("apply to %+v: %v", o, err)
+							}
+							if o.Blood != nil || o.QF != 0 || o.Sieving != core.DefaultSieving {
+								t.Fatalf("apply of the default conditions gave %+v", o)
+							}
+							if err := o.Validate(); err != nil {
+								t.Errorf("apply skipped the check of %+v, which fails: %v", o, err)
+							}
 						}
 						checked++
 					}
@@ -694,8 +716,8 @@ func TestApplyAqueousShortcut(t *testing.T) {
 			}
 		}
 	}
-	if checked < 1000 {
-		t.Errorf("only %d valid points checked", checked)
+	if checked == 0 {
+		t.Error("no point of the grid was valid")
 	}
 }
 
@@ -722,5 +744,11 @@ func TestFastPathAllocations(t *testing.T) {
 		if n := testing.AllocsPerRun(100, c.call); n != c.want {
 			t.Errorf("%s of the page's request: %v allocations, want %v", c.name, n, c.want)
 		}
+	}
+	// A failure is written into the buffer too, so that the buffer keeps
+	// its room for the answers after it.
+	failed := AppendCompare(buf[:0], []byte(`{"qb":"-1","qd":"500","koa":"800"}`))
+	if !bytes.HasPrefix(failed, []byte(`{"ok":false`)) || &failed[0] != &buf[:1][0] {
+		t.Errorf("a failure was not written into the buffer given: %s", failed)
 	}
 }

@@ -2,11 +2,11 @@ package api
 
 import "math"
 
-// appendShortestFraction appends x, which must not be an integer, in
+// appendShortestFraction appends x, a number that is not an integer, in
 // strconv.AppendFloat(b, x, 'f', -1, 64)'s form (the shortest decimal that
 // reads back as x, and of those the closest to x) when 2^-6 <= |x| < 2^53,
-// and reports whether it did; outside that range it appends nothing and
-// returns false. Under WebAssembly it takes about half of strconv's time
+// and reports whether it did; for an integer, or outside that range, it
+// appends nothing and returns false. Under WebAssembly it takes about half of strconv's time
 // (README, Performance): strconv's search (Ryū) multiplies 64 by 128 bits,
 // which that backend builds from 32-bit pieces, and branches much, which
 // it takes through a dispatch on the block number.
