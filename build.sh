@@ -97,8 +97,9 @@ run_bench() {
   PATH="$PATH:$GOROOT_WASM" GOOS=js GOARCH=wasm go test -run '^$' -bench . ./wasm/...
   # Called from JavaScript as the page calls it, against a plain JS peer.
   node wasm/bench/bench.mjs site/clearkit.wasm "$GOROOT_WASM/wasm_exec.js"
-  # Start-up and input in Chromium at 4x CPU throttle (site/bench_browser_test.go).
-  go test -tags bench -count=1 -run '^TestBenchBrowser$' -v ./site | grep -v -e '^=== RUN' -e '^--- PASS' -e '^PASS$'
+  # Start-up and input in Chromium at 4x CPU throttle, the compare, check and
+  # size views (site/bench_browser_test.go).
+  go test -tags bench -count=1 -run '^TestBenchBrowser' -v ./site | grep -v -e '^=== RUN' -e '^--- PASS' -e '^PASS$'
   local raw gz
   raw=$(wc -c < site/clearkit.wasm)
   gz=$(gzip -9c site/clearkit.wasm | wc -c)

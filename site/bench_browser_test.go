@@ -188,3 +188,68 @@ func TestBenchBrowserCheck(t *testing.T) {
 	fmt.Printf("  the 95 %% ranges computed and shown            median %6.2f ms  p95 %6.2f ms\n", quantile(f.Ranges, 0.5), quantile(f.Ranges, 0.95))
 	fmt.Printf("    the whole check in one call (as before)      median %6.2f ms  p95 %6.2f ms\n", quantile(f.Whole, 0.5), quantile(f.Whole, 0.95))
 }
+
+// TestBenchBrowserSize: a keystroke in the Size a filter view with the
+// demo (three filters on the shelf, a filter in use, both flow ranges),
+// CPU throttled 4x. (1) Input to updated results and chart: a new target
+// clearance, the input event, style and layout of the results and the
+// chart forced (painting not included). (2) The calculation's share: the
+// same inputs again with clearkit.size wrapped, timing the bridge call and
+// a JSON.parse of its answer (the view's chart series travel as JSON text).
+func TestBenchBrowserSize(t *testing.T) {
+	p := openPage(t, "")
+	p.showView("size")
+	p.settle()
+	if _, err := chromedp.Call(p.ctx, emulation.SetCPUThrottlingRate, emulation.SetCPUThrottlingRateParams{Rate: benchThrottle}); err != nil {
+		t.Fatal(err)
+	}
+	type figures struct {
+		Keystroke, Call []float64
+		Bytes           int
+	}
+	f := evalTimeout[figures](p, fmt.Sprintf(`(async () => {
+		const view = document.querySelector('section.view[data-view="size"]');
+		const input = view.querySelector('#size-form input[name="target_clearance"]');
+		const results = view.querySelector('.results');
+		const chart = view.querySelector('svg.chart');
+		const frame = () => new Promise((r) => requestAnimationFrame(() => setTimeout(r, 0)));
+		const out = { Keystroke: [], Call: [], Bytes: 0 };
+		const keystrokes = async (record) => {
+			for (let i = 0; i < %[1]d + 60; i++) {
+				await frame();
+				input.value = String(230 + (i %% 40));
+				const t0 = performance.now();
+				input.dispatchEvent(new Event('input', { bubbles: true }));
+				results.getBoundingClientRect();
+				chart.getBoundingClientRect();
+				if (record && i >= 60) out.Keystroke.push(performance.now() - t0);
+			}
+		};
+		await keystrokes(true);
+		const size = clearkit.size;
+		const calls = [];
+		clearkit.size = (...args) => {
+			const t0 = performance.now();
+			const answer = size(...args);
+			JSON.parse(answer);
+			calls.push(performance.now() - t0);
+			out.Bytes = answer.length;
+			return answer;
+		};
+		try {
+			await keystrokes(false);
+		} finally {
+			clearkit.size = size;
+		}
+		out.Call = calls.slice(60);
+		return out;
+	})()`, benchInputs), 5*time.Minute)
+	// The last input (target 249 mL/min) must have been computed and shown.
+	if state, shown := eval[string](p, `document.querySelector('#view-size .results').dataset.state`),
+		eval[string](p, `document.querySelector('#size-form input[name="target_clearance"]').value`); state != "ok" || shown != "249" {
+		t.Fatalf("after the inputs: results state %q, target %q, want ok and 249", state, shown)
+	}
+	fmt.Printf("bench: browser, Chromium headless, CPU throttled %dx, Size a filter with the demo (%d inputs):\n", benchThrottle, len(f.Keystroke))
+	fmt.Printf("  input to updated results and chart   median %6.2f ms  p95 %6.2f ms\n", quantile(f.Keystroke, 0.5), quantile(f.Keystroke, 0.95))
+	fmt.Printf("    of which the call and JSON.parse    median %6.2f ms  p95 %6.2f ms  (%d bytes of JSON back)\n", quantile(f.Call, 0.5), quantile(f.Call, 0.95), f.Bytes)
+}

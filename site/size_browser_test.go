@@ -405,3 +405,54 @@ func TestSizeSnapshotRestore(t *testing.T) {
 		t.Errorf("snapshot with an input in error = %s, want null", got)
 	}
 }
+
+// TestSizeInputChangesOnlyWhatDiffers: typing a new target in the size
+// view rewrites the numbers whose text differs (cards, filters on hand,
+// filter in use) and leaves the others alone; the same target written
+// another way changes nothing in the results at all (no text, attribute,
+// flag or chart element written). Reference: the texts the view showed
+// before and after, read from the page.
+func TestSizeInputChangesOnlyWhatDiffers(t *testing.T) {
+	p := openPage(t, "")
+	p.showView("size")
+	steps := eval[[]map[string]any](p, `(() => {
+		const view = document.querySelector('#view-size');
+		const input = view.querySelector('input[name="target_clearance"]');
+		const outputs = [...view.querySelectorAll('.results output')];
+		const type = (v) => {
+			const before = outputs.map((o) => o.textContent);
+			const seen = new MutationObserver(() => {});
+			seen.observe(view.querySelector('.results'), { subtree: true, attributes: true, childList: true, characterData: true });
+			input.value = v;
+			input.dispatchEvent(new Event('input', { bubbles: true }));
+			const records = seen.takeRecords();
+			seen.disconnect();
+			const rewritten = new Set();
+			let others = 0;
+			for (const r of records) {
+				const node = r.target.nodeType === Node.TEXT_NODE ? r.target.parentNode : r.target;
+				const out = node.closest('output');
+				if (out) rewritten.add(out);
+				else others++;
+			}
+			return {
+				target: v, others, records: records.length,
+				wrong: outputs.filter((o, i) => rewritten.has(o) !== (o.textContent !== before[i])).map((o) => o.dataset.out ?? o.dataset.fit),
+				changed: outputs.filter((o, i) => o.textContent !== before[i]).length,
+			};
+		};
+		type('240');
+		return [type('241'), type('241,0')];
+	})()`)
+	for _, s := range steps {
+		if w := s["wrong"].([]any); len(w) > 0 {
+			t.Errorf("target %v: outputs rewritten though their text is the same, or not though it changed: %v", s["target"], w)
+		}
+	}
+	if s := steps[0]; s["changed"].(float64) == 0 {
+		t.Errorf("target %v: no output changed", s["target"])
+	}
+	if s := steps[1]; s["records"].(float64) != 0 {
+		t.Errorf("target %v, the same as before: %v changes in the results (%v outside the outputs), want none", s["target"], s["records"], s["others"])
+	}
+}

@@ -16,3 +16,18 @@ export function button(text, className, onClick) {
   b.addEventListener('click', onClick);
   return b;
 }
+
+// setText, setHidden and setData write only a change: writing the value an
+// element already has still makes the browser style and lay it out again,
+// and the views write their results on every keystroke.
+export function setText(node, text) {
+  if (node.textContent !== text) node.textContent = text;
+}
+
+export function setHidden(node, hidden) {
+  if (node.hidden !== hidden) node.hidden = hidden;
+}
+
+export function setData(node, key, value) {
+  if (node.dataset[key] !== value) node.dataset[key] = value;
+}

@@ -29,25 +29,31 @@ function howShown(out) {
   return how;
 }
 
-// renderOutputs fills every output under root from data. An output whose
-// text and value are unchanged is left alone, so that the browser lays out
-// again only what changed; data-chars holds the length of the text, which
-// style.css uses to give a view's numbers boxes of their own.
+// renderOutputs fills every output under root from data (showNumber).
 export function renderOutputs(root, data) {
   for (const out of root.querySelectorAll('output[data-out]')) {
     const how = howShown(out);
     let value = data;
     for (const key of how.keys) value = value == null ? undefined : value[key];
-    const text = formatNumber(value, how.digits, how.options);
-    const full = typeof value === 'number' ? String(value) : '';
-    if (out.getAttribute('data-value') !== full) out.setAttribute('data-value', full);
-    const node = out.firstChild;
-    const single = node !== null && node.nodeType === Node.TEXT_NODE && node.nextSibling === null;
-    if (single ? node.data === text : out.textContent === text) continue;
-    const chars = String(text.length);
-    if (out.getAttribute('data-chars') !== chars) out.setAttribute('data-chars', chars);
-    // Changing the text node's data keeps the node: cheaper than a new one.
-    if (single) node.data = text;
-    else out.textContent = text;
+    showNumber(out, value, how.digits, how.options);
   }
+}
+
+// showNumber puts value in the output out, rounded as formatNumber does,
+// with the full value in data-value. An output whose text and value are
+// unchanged is left alone, so that the browser lays out again only what
+// changed; data-chars holds the length of the text, which style.css uses
+// to give a view's numbers boxes of their own.
+export function showNumber(out, value, digits, options) {
+  const text = formatNumber(value, digits, options);
+  const full = typeof value === 'number' ? String(value) : '';
+  if (out.getAttribute('data-value') !== full) out.setAttribute('data-value', full);
+  const node = out.firstChild;
+  const single = node !== null && node.nodeType === Node.TEXT_NODE && node.nextSibling === null;
+  if (single ? node.data === text : out.textContent === text) return;
+  const chars = String(text.length);
+  if (out.getAttribute('data-chars') !== chars) out.setAttribute('data-chars', chars);
+  // Changing the text node's data keeps the node: cheaper than a new one.
+  if (single) node.data = text;
+  else out.textContent = text;
 }

@@ -3,7 +3,8 @@
 // hand, the flows the filter in use needs and the chart series.
 
 import { readForm, fillForm, showError } from './form.js';
-import { renderOutputs, formatNumber } from './format.js';
+import { renderOutputs, formatNumber, showNumber } from './format.js';
+import { setText, setHidden, setData } from './dom.js';
 import { drawChart } from './chart.js';
 
 // The ultrafiltration and whole-blood fields left blank: QF 0, S 1, an
@@ -138,63 +139,60 @@ export function mountSize(root, engine) {
   function renderCards(r) {
     for (const name of ['countercurrent', 'cocurrent']) {
       const card = root.querySelector(`.card[data-arrangement="${name}"]`);
-      card.dataset.reachable = String(r[name].reachable);
-      card.querySelector('[data-message-for]').textContent = r[name].reachable ? '' : `Out of reach: the target ${r[name].message}.`;
-      card.querySelector('[data-used]').hidden = r.flow !== name;
+      setData(card, 'reachable', String(r[name].reachable));
+      setText(card.querySelector('[data-message-for]'), r[name].reachable ? '' : `Out of reach: the target ${r[name].message}.`);
+      setHidden(card.querySelector('[data-used]'), r.flow !== name);
     }
   }
 
   function renderChoice(r) {
     const panel = root.querySelector('#size-choice');
     const verdict = panel.querySelector('[data-choice-verdict]');
-    panel.querySelector('[data-needs-area]').hidden = r.k0 == null;
+    setHidden(panel.querySelector('[data-needs-area]'), r.k0 == null);
     const byRow = new Map(sent.map((row, k) => [row, k]));
     rows().forEach((row, i) => {
       const fit = r.choice && byRow.has(i) ? r.choice.filters[byRow.get(i)] : null;
       for (const out of row.querySelectorAll('output[data-fit]')) {
         const value = fit ? fit[out.dataset.fit] : undefined;
-        out.textContent = formatNumber(value, Number(out.dataset.digits), { signed: out.hasAttribute('data-signed') });
-        out.dataset.value = typeof value === 'number' ? String(value) : '';
+        showNumber(out, value, Number(out.dataset.digits), { signed: out.hasAttribute('data-signed') });
       }
       // A filter that reaches the target but not the margin on KoA is
       // "below margin", not short of the target.
       const chosen = fit && r.choice.chosen === byRow.get(i);
       let state = '';
       if (fit) state = chosen ? 'chosen' : fit.meets ? 'meets' : fit.clearance_gap >= 0 ? 'margin' : 'short';
-      row.dataset.fit = state;
-      row.querySelector('[data-fit-verdict]').textContent = { '': '', chosen: 'Chosen', meets: 'Meets', margin: 'Below margin', short: 'Short' }[state];
+      setData(row, 'fit', state);
+      setText(row.querySelector('[data-fit-verdict]'), { '': '', chosen: 'Chosen', meets: 'Meets', margin: 'Below margin', short: 'Short' }[state]);
     });
     if (!r.choice) {
-      verdict.textContent = 'List the filters on hand to pick one.';
+      setText(verdict, 'List the filters on hand to pick one.');
     } else if (r.choice.chosen == null) {
-      verdict.textContent = 'None of them meets the target with this margin.';
+      setText(verdict, 'None of them meets the target with this margin.');
     } else {
-      verdict.textContent = `Smallest that meets it: ${r.choice.filters[r.choice.chosen].label}.`;
+      setText(verdict, `Smallest that meets it: ${r.choice.filters[r.choice.chosen].label}.`);
     }
   }
 
   function renderCurrent(r) {
     const panel = root.querySelector('#size-current');
     const c = r.current_filter;
-    panel.querySelector('[data-current-none]').hidden = Boolean(c);
-    panel.querySelector('[data-current-some]').hidden = !c;
+    setHidden(panel.querySelector('[data-current-none]'), Boolean(c));
+    setHidden(panel.querySelector('[data-current-some]'), !c);
     for (const name of ['qd', 'qb']) {
       const note = panel.querySelector(`[data-solve-note="${name}"]`);
       const s = c && c[name];
       const flow = name.toUpperCase();
-      if (!s) {
-        note.textContent = '';
-      } else if (!s.ok) {
+      let text = '';
+      if (s && !s.ok) {
         // The API's message follows the field it names: a range, or the
         // filter in use.
         const m = s.error.message;
-        note.textContent = s.error.field === 'current_filter' ? `The filter in use ${m}.` : `${m.charAt(0).toUpperCase()}${m.slice(1)}.`;
-      } else if (s.at_minimum) {
-        note.textContent = `${flow}: the lowest settable ${flow}, ${formatNumber(s.flow, 1)} mL/min, already reaches the target.`;
-      } else {
-        note.textContent = '';
+        text = s.error.field === 'current_filter' ? `The filter in use ${m}.` : `${m.charAt(0).toUpperCase()}${m.slice(1)}.`;
+      } else if (s && s.at_minimum) {
+        text = `${flow}: the lowest settable ${flow}, ${formatNumber(s.flow, 1)} mL/min, already reaches the target.`;
       }
-      note.dataset.state = !s ? '' : s.ok ? 'ok' : 'error';
+      setText(note, text);
+      setData(note, 'state', !s ? '' : s.ok ? 'ok' : 'error');
     }
   }
 
@@ -202,7 +200,7 @@ export function mountSize(root, engine) {
     const useArea = r.k0 != null;
     const key = useArea ? 'area_m2' : 'koa';
     const sw = r.sweep;
-    caption.textContent = useArea ? 'Membrane area needed against target clearance' : 'KoA needed against target clearance (enter K0 for areas)';
+    setText(caption, useArea ? 'Membrane area needed against target clearance' : 'KoA needed against target clearance (enter K0 for areas)');
     const ceilings = { countercurrent: r.countercurrent.clearance_ceiling, cocurrent: r.cocurrent.clearance_ceiling };
     const ys = ['countercurrent', 'cocurrent'].filter((a) => r[a].reachable).map((a) => r[a][key]);
     drawChart(chart, {
@@ -232,11 +230,11 @@ export function mountSize(root, engine) {
       return;
     }
     showFailure(null);
-    results.classList.remove('stale');
-    results.dataset.state = 'ok';
+    if (results.classList.contains('stale')) results.classList.remove('stale');
+    setData(results, 'state', 'ok');
     last = response;
     renderOutputs(results, response);
-    bloodNote.hidden = !response.input.blood;
+    setHidden(bloodNote, !response.input.blood);
     renderCards(response);
     renderChoice(response);
     renderCurrent(response);
