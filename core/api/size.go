@@ -76,6 +76,12 @@ type SizeResponse struct {
 // same order and refuses a target at or above the ceiling with the
 // ceiling in error.limit.
 func Size(request []byte) []byte {
+	return size(request, true)
+}
+
+// size answers Size; with fast false it encodes the whole answer with the
+// general encoder (see respondSize).
+func size(request []byte, fast bool) []byte {
 	var req SizeRequest
 	if err := decode(request, &req); err != nil {
 		return failure(err)
@@ -88,7 +94,7 @@ func Size(request []byte) []byte {
 	if err != nil {
 		return failure(err)
 	}
-	return respond(&SizeResponse{
+	return respondSize(&SizeResponse{
 		OK: true,
 		Input: SizeInput{
 			TargetClearance: spec.Target,
@@ -101,7 +107,7 @@ func Size(request []byte) []byte {
 			MarginPercent:   spec.MarginPercent,
 		},
 		Sizing: s,
-	}, nil)
+	}, fast)
 }
 
 func (r *SizeRequest) spec() (s core.SizeSpec, err error) {

@@ -1,0 +1,128 @@
+package api
+
+import (
+	"bytes"
+	"math"
+	"math/rand/v2"
+	"reflect"
+	"slices"
+	"testing"
+
+	"github.com/goccy/go-json"
+
+	"clearkit/core"
+)
+
+// The size answer's series are written by appendSizeSweep (sizesweep.go)
+// and must be the general encoder's bytes: these tests compare the two.
+
+// TestSizeSweepWriter: appendSizeSweep writes every member of the sweep's
+// types (found through reflection) as goccy/go-json does, for sweeps whose
+// every number is random (fill), with and without the optional members,
+// with nil, empty and filled series; it declines a number that is not
+// finite, wherever it stands.
+func TestSizeSweepWriter(t *testing.T) {
+	if got := jsonMembers(reflect.TypeFor[core.SizeSweep](), ""); !slices.Equal(got, sizeSweepMembers) || !sizeSweepKnown {
+		t.Fatalf("the sweep's members are %q,\nappendSizeSweep writes %q (sizeSweepMembers), and the sweep is the answer's last member: %v;\nadd a new member to both, in sizesweep.go", got, sizeSweepMembers, sizeSweepKnown)
+	}
+	rng := rand.New(rand.NewPCG(5, 8))
+	check := func(s *core.SizeSweep) {
+		t.Helper()
+		want, err := json.Marshal(s)
+		if err != nil {
+			t.Fatal(err)
+		}
+		if got, ok := appendSizeSweep([]byte("x"), s); !ok || !bytes.Equal(got[1:], want) || got[0] != 'x' {
+			t.Fatalf("appendSizeSweep = %s, %v,\nwant x%s (goccy/go-json)", got, ok, want)
+		}
+	}
+	for i := range 300 {
+		var s core.SizeSweep
+		fill(reflect.ValueOf(&s).Elem(), rng, i%2 == 0)
+		check(&s)
+		switch i % 3 {
+		case 0:
+			s.Countercurrent.AreaM2, s.Cocurrent.Target = nil, nil
+		case 1:
+			s.Cocurrent.AreaM2, s.Countercurrent.KoA = []float64{}, []float64{}
+		default:
+			s.Countercurrent.Target = make([]float64, 101)
+			for k := range s.Countercurrent.Target {
+				s.Countercurrent.Target[k] = randomFloat(rng)
+			}
+		}
+		check(&s)
+	}
+	for _, x := range []float64{math.NaN(), math.Inf(1), math.Inf(-1)} {
+		for place := range 4 {
+			s := core.SizeSweep{KoAMax: 2000, Countercurrent: core.SizeSeries{Target: []float64{1, 2}, KoA: []float64{3, 4}}}
+			switch place {
+			case 0:
+				s.KoAMax = x
+			case 1:
+				s.Countercurrent.Target[1] = x
+			case 2:
+				s.Cocurrent.AreaM2 = []float64{x}
+			default:
+				s.Cocurrent.ClearanceCeiling = x
+			}
+			if _, ok := appendSizeSweep(nil, &s); ok {
+				t.Errorf("appendSizeSweep with %v at place %d: accepted, want declined", x, place)
+			}
+		}
+	}
+}
+
+// sizeRequests are size requests with chart series in their variants (K0
+// given, from a reference filter or absent, so with and without areas;
+// other points and tops of the axis; whole blood and ultrafiltration;
+// co-current; a target near the ceiling, where points are left out), and
+// some without series or in error.
+func sizeRequests() []string {
+	var requests []string
+	for _, base := range []string{
+		`"target_clearance":250,"qb":300,"qd":500`,
+		`"target_clearance":250,"qb":300,"qd":500,"k0":0.05`,
+		`"target_clearance":"180,5","qb":"300","qd":"500","reference":{"koa":900,"area_m2":1.8},"flow":"cocurrent"`,
+		`"target_clearance":299.9,"qb":300,"qd":800,"k0":0.06`,
+		`"target_clearance":200,"qb":350,"qd":600,"hct":32,"qf":12,"sieving":0.9,"k0":0.05`,
+		`"target_clearance":120,"qb":150,"qd":150`,
+	} {
+		for _, sweep := range []string{``, `,"sweep":{}`, `,"sweep":{"points":2}`, `,"sweep":{"points":7,"koa_max":1e4}`, `,"sweep":{"points":1001}`} {
+			requests = append(requests, "{"+base+sweep+"}")
+		}
+	}
+	return append(requests,
+		`{"target_clearance":240,"qb":300,"qd":500,"k0":0.05,"margin_percent":5,"filters":[{"label":"small","area_m2":1.2},{"label":"large","koa":1200}],"current_filter":{"area_m2":1.5},"qd_range":[300,800],"sweep":{}}`,
+		`{"target_clearance":400,"qb":300,"qd":500,"sweep":{}}`, `{"qb":300,"sweep":{}}`, `{`)
+}
+
+// TestSizeBothWays: every request of sizeRequests gets the same bytes with
+// the series written by appendSizeSweep as from the general encoder.
+func TestSizeBothWays(t *testing.T) {
+	withSeries := 0
+	for _, request := range sizeRequests() {
+		fast, general := size([]byte(request), true), size([]byte(request), false)
+		if !bytes.Equal(fast, general) {
+			t.Errorf("size(%s):\nwith appendSizeSweep %s\ngeneral encoder      %s", request, clip(string(fast)), clip(string(general)))
+		}
+		if bytes.Contains(general, []byte(`"sweep":{"koa_max"`)) {
+			withSeries++
+		}
+	}
+	if withSeries < 20 {
+		t.Errorf("only %d answers had series", withSeries)
+	}
+}
+
+// FuzzSizeSweepWriter: whatever the request, both ways give the same bytes.
+func FuzzSizeSweepWriter(f *testing.F) {
+	for _, request := range sizeRequests() {
+		f.Add([]byte(request))
+	}
+	f.Fuzz(func(t *testing.T, request []byte) {
+		if fast, general := size(request, true), size(request, false); !bytes.Equal(fast, general) {
+			t.Errorf("size(%q):\nwith appendSizeSweep %s\ngeneral encoder      %s", request, clip(string(fast)), clip(string(general)))
+		}
+	})
+}
