@@ -488,3 +488,46 @@ func TestCheckViewIntervalLater(t *testing.T) {
 		t.Errorf("after the snapshot the results are still pending")
 	}
 }
+
+// TestCheckViewInputChangesOnlyWhatDiffers: with the uncertainty fields
+// empty (one call, nothing pending), a new CBo rewrites what its answer
+// changes and keeps the findings' items (only their texts differ), and the
+// same CBo written another way changes nothing in the results. Reference:
+// the page's own elements and texts before and after.
+func TestCheckViewInputChangesOnlyWhatDiffers(t *testing.T) {
+	p := openChecks(t)
+	steps := eval[[]map[string]any](p, `(() => {
+		const form = document.getElementById('check-form');
+		for (const name of ['concentration_uncertainty_percent', 'concentration_uncertainty_floor', 'flow_uncertainty_percent']) {
+			form.querySelector('input[name="' + name + '"]').value = '';
+		}
+		const input = document.getElementById('check-cbo');
+		const results = document.getElementById('check-results');
+		const type = (v) => {
+			const items = [...results.querySelectorAll('.findings li')];
+			const seen = new MutationObserver(() => {});
+			seen.observe(results, { subtree: true, attributes: true, childList: true, characterData: true });
+			input.value = v;
+			input.dispatchEvent(new Event('input', { bubbles: true }));
+			const records = seen.takeRecords();
+			seen.disconnect();
+			const now = [...results.querySelectorAll('.findings li')];
+			return {
+				cbo: v, records: records.length, pending: results.dataset.pending ?? '',
+				kept: items.length === now.length && items.every((li, k) => li === now[k]), findings: now.length,
+			};
+		};
+		type('19');
+		return [type('19.5'), type('19,50')];
+	})()`)
+	changed, same := steps[0], steps[1]
+	if changed["records"].(float64) == 0 || changed["findings"].(float64) == 0 || changed["pending"] != "" {
+		t.Errorf("CBo %v: %v changes, %v findings, pending %q; want changes, findings and nothing pending", changed["cbo"], changed["records"], changed["findings"], changed["pending"])
+	}
+	if changed["kept"] != true {
+		t.Errorf("CBo %v: the findings' items were made anew; want the same items with new texts", changed["cbo"])
+	}
+	if same["records"].(float64) != 0 {
+		t.Errorf("CBo %v, the same as before: %v changes in the results, want none", same["cbo"], same["records"])
+	}
+}

@@ -5,7 +5,8 @@
 // verdict comes from the API; this module only shows them.
 
 import { readForm, fillForm, showError } from './form.js';
-import { renderOutputs, at } from './format.js';
+import { renderOutputs } from './format.js';
+import { setText, setHidden, setData } from './dom.js';
 
 // The sieving and whole-blood fields of the clearance test left blank: S 1,
 // an aqueous solution. Records saved before these fields existed lack
@@ -61,42 +62,46 @@ function bannerLevel(findings) {
 }
 
 function showVerdict(banner, level, code) {
-  banner.dataset.level = level;
-  banner.querySelector('.verdict-symbol').textContent = LEVELS[level].symbol;
-  banner.querySelector('.verdict-word').textContent = LEVELS[level].word.toUpperCase();
-  banner.querySelector('.verdict-label').textContent = VERDICTS[code] ?? '';
+  setData(banner, 'level', level);
+  setText(banner.querySelector('.verdict-symbol'), LEVELS[level].symbol);
+  setText(banner.querySelector('.verdict-word'), LEVELS[level].word.toUpperCase());
+  setText(banner.querySelector('.verdict-label'), VERDICTS[code] ?? '');
 }
 
+// showFindings lists the findings, one item each: an item already there is
+// kept and only what differs in it is written (a keystroke mostly changes
+// a number in a sentence), items are added or removed at the end.
 function showFindings(list, findings) {
-  list.replaceChildren(...findings.map((f) => {
-    const li = document.createElement('li');
-    li.dataset.level = f.level;
-    li.dataset.code = f.code;
-    const symbol = document.createElement('span');
-    symbol.className = 'finding-symbol';
-    symbol.setAttribute('aria-hidden', 'true');
-    symbol.textContent = LEVELS[f.level].symbol;
-    const word = document.createElement('strong');
-    word.className = 'finding-word';
-    word.textContent = `${LEVELS[f.level].word}:`;
-    li.append(symbol, ' ', word, ' ', f.text);
-    return li;
-  }));
+  const items = list.children;
+  while (items.length > findings.length) items[items.length - 1].remove();
+  findings.forEach((f, k) => {
+    let li = items[k];
+    if (!li) {
+      li = document.createElement('li');
+      const symbol = document.createElement('span');
+      symbol.className = 'finding-symbol';
+      symbol.setAttribute('aria-hidden', 'true');
+      const word = document.createElement('strong');
+      word.className = 'finding-word';
+      li.append(symbol, ' ', word, ' ', '');
+      list.append(li);
+    }
+    setData(li, 'level', f.level);
+    setData(li, 'code', f.code);
+    setText(li.querySelector('.finding-symbol'), LEVELS[f.level].symbol);
+    setText(li.querySelector('.finding-word'), `${LEVELS[f.level].word}:`);
+    const text = li.lastChild;
+    if (text.data !== f.text) text.data = f.text;
+  });
 }
 
-// showNulls puts words where a number is null ("cannot reach", "no
-// bound"): an output with data-null shows it when its value is null, and a
-// dash when its part of the response is absent (no uncertainty asked).
-function showNulls(root, data) {
-  for (const out of root.querySelectorAll('output[data-null]')) {
-    const value = at(data, out.dataset.out);
-    if (value === null) out.textContent = out.dataset.null;
-  }
-  // A range whose low end is null or absent says so in one word: the
-  // " to ..." part is hidden.
+// showRanges shortens a range whose low end is null or absent to one word
+// (its output's data-null word, which renderOutputs shows, or a dash when
+// no uncertainty was asked): the " to ..." part is hidden.
+function showRanges(root) {
   for (const range of root.querySelectorAll('.range')) {
     const [low, ...rest] = range.querySelectorAll('output, .range-to');
-    for (const el of rest) el.hidden = low.dataset.value === '';
+    for (const el of rest) setHidden(el, low.dataset.value === '');
   }
 }
 
@@ -136,11 +141,11 @@ function bindCalculation(engine, name, form, results, request, render, split = (
       return false;
     }
     showError(form, null);
-    results.classList.remove('stale');
-    results.dataset.state = 'ok';
+    if (results.classList.contains('stale')) results.classList.remove('stale');
+    setData(results, 'state', 'ok');
     state.last = response;
     renderOutputs(results, response);
-    showNulls(results, response);
+    showRanges(results);
     render(response);
     return true;
   };
@@ -162,7 +167,7 @@ function bindCalculation(engine, name, form, results, request, render, split = (
     if (!show(engine.call(name, first ?? whole)) || !first) return;
     state.pending = whole;
     results.dataset.pending = 'true';
-    for (const out of results.querySelectorAll('[data-pending-shows] output')) out.textContent = '…';
+    for (const out of results.querySelectorAll('[data-pending-shows] output')) setText(out, '…');
     state.timer = setTimeout(state.flush, LATER_MS);
   };
   form.addEventListener('input', state.update);
@@ -197,10 +202,10 @@ export function mountCheck(root, engine) {
   const clearance = bindCalculation(engine, 'check', checkForm, checkResults, () => readForm(checkForm), (r) => {
     showVerdict(checkResults.querySelector('.verdict'), bannerLevel(r.findings), r.verdict);
     const mark = checkResults.querySelector('[data-mark="mass_balance_ok"]');
-    mark.textContent = r.mass_balance_ok ? `${LEVELS.pass.symbol} within` : `${LEVELS.fail.symbol} outside`;
-    mark.dataset.level = r.mass_balance_ok ? 'pass' : 'fail';
+    setText(mark, r.mass_balance_ok ? `${LEVELS.pass.symbol} within` : `${LEVELS.fail.symbol} outside`);
+    setData(mark, 'level', r.mass_balance_ok ? 'pass' : 'fail');
     showFindings(checkResults.querySelector('.findings'), r.findings);
-    checkResults.querySelector('#check-blood-note').hidden = !r.input.blood;
+    setHidden(checkResults.querySelector('#check-blood-note'), !r.input.blood);
   }, withoutUncertainty);
 
   // Conductivity.

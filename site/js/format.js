@@ -40,12 +40,13 @@ export function renderOutputs(root, data) {
 }
 
 // showNumber puts value in the output out, rounded as formatNumber does,
-// with the full value in data-value. An output whose text and value are
-// unchanged is left alone, so that the browser lays out again only what
-// changed; data-chars holds the length of the text, which style.css uses
-// to give a view's numbers boxes of their own.
+// with the full value in data-value; a null value shows the output's
+// data-null word where it has one ("cannot reach"). An output whose text
+// and value are unchanged is left alone, so that the browser lays out
+// again only what changed; data-chars holds the length of the text, which
+// style.css uses to give a view's numbers boxes of their own.
 export function showNumber(out, value, digits, options) {
-  const text = formatNumber(value, digits, options);
+  const text = value === null && out.dataset.null !== undefined ? out.dataset.null : formatNumber(value, digits, options);
   const full = typeof value === 'number' ? String(value) : '';
   if (out.getAttribute('data-value') !== full) out.setAttribute('data-value', full);
   const node = out.firstChild;
