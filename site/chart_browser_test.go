@@ -104,18 +104,13 @@ func TestChartRedraw(t *testing.T) {
 // read from the page.
 func TestCompareInputChangesOnlyWhatDiffers(t *testing.T) {
 	p := openPage(t, "")
-	steps := eval[[]map[string]any](p, `(() => {
+	steps := eval[[]map[string]any](p, `(() => {`+typedJS+`
 		const view = document.querySelector('#view-compare');
 		const input = view.querySelector('input[name="qb"]');
 		const outputs = [...view.querySelectorAll('.results output')];
 		const type = (v) => {
 			const before = outputs.map((o) => o.textContent);
-			const seen = new MutationObserver(() => {});
-			seen.observe(view.querySelector('.results'), { subtree: true, attributes: true, childList: true, characterData: true });
-			input.value = v;
-			input.dispatchEvent(new Event('input', { bubbles: true }));
-			const records = seen.takeRecords();
-			seen.disconnect();
+			const records = typed(input, view.querySelector('.results'), v);
 			const others = new Set(), rewritten = new Set();
 			for (const r of records) {
 				const node = r.target.nodeType === Node.TEXT_NODE ? r.target.parentNode : r.target;

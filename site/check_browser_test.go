@@ -496,7 +496,7 @@ func TestCheckViewIntervalLater(t *testing.T) {
 // the page's own elements and texts before and after.
 func TestCheckViewInputChangesOnlyWhatDiffers(t *testing.T) {
 	p := openChecks(t)
-	steps := eval[[]map[string]any](p, `(() => {
+	steps := eval[[]map[string]any](p, `(() => {`+typedJS+`
 		const form = document.getElementById('check-form');
 		for (const name of ['concentration_uncertainty_percent', 'concentration_uncertainty_floor', 'flow_uncertainty_percent']) {
 			form.querySelector('input[name="' + name + '"]').value = '';
@@ -505,12 +505,7 @@ func TestCheckViewInputChangesOnlyWhatDiffers(t *testing.T) {
 		const results = document.getElementById('check-results');
 		const type = (v) => {
 			const items = [...results.querySelectorAll('.findings li')];
-			const seen = new MutationObserver(() => {});
-			seen.observe(results, { subtree: true, attributes: true, childList: true, characterData: true });
-			input.value = v;
-			input.dispatchEvent(new Event('input', { bubbles: true }));
-			const records = seen.takeRecords();
-			seen.disconnect();
+			const records = typed(input, results, v);
 			const now = [...results.querySelectorAll('.findings li')];
 			return {
 				cbo: v, records: records.length, pending: results.dataset.pending ?? '',

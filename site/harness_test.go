@@ -297,3 +297,17 @@ func (p *page) screenshot(name string) {
 		p.t.Fatal(err)
 	}
 }
+
+// typedJS defines, for a script evaluated in the page, typed(input,
+// results, value): it types value into input (its input event) and
+// returns the mutation records that results saw meanwhile, so that a test
+// can tell what a keystroke wrote.
+const typedJS = `const typed = (input, results, value) => {
+	const seen = new MutationObserver(() => {});
+	seen.observe(results, { subtree: true, attributes: true, childList: true, characterData: true });
+	input.value = value;
+	input.dispatchEvent(new Event('input', { bubbles: true }));
+	const records = seen.takeRecords();
+	seen.disconnect();
+	return records;
+};`

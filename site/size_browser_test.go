@@ -415,18 +415,13 @@ func TestSizeSnapshotRestore(t *testing.T) {
 func TestSizeInputChangesOnlyWhatDiffers(t *testing.T) {
 	p := openPage(t, "")
 	p.showView("size")
-	steps := eval[[]map[string]any](p, `(() => {
+	steps := eval[[]map[string]any](p, `(() => {`+typedJS+`
 		const view = document.querySelector('#view-size');
 		const input = view.querySelector('input[name="target_clearance"]');
 		const outputs = [...view.querySelectorAll('.results output')];
 		const type = (v) => {
 			const before = outputs.map((o) => o.textContent);
-			const seen = new MutationObserver(() => {});
-			seen.observe(view.querySelector('.results'), { subtree: true, attributes: true, childList: true, characterData: true });
-			input.value = v;
-			input.dispatchEvent(new Event('input', { bubbles: true }));
-			const records = seen.takeRecords();
-			seen.disconnect();
+			const records = typed(input, view.querySelector('.results'), v);
 			const rewritten = new Set();
 			let others = 0;
 			for (const r of records) {
