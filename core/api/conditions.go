@@ -60,9 +60,7 @@ func bloodOnly(n *Number, field string) error {
 }
 
 // apply reads the conditions into op, an operating point whose own fields
-// are valid, and validates the result. An aqueous solution without
-// ultrafiltration at the default sieving (the page's usual request) is
-// valid whenever op's own fields are, and is not checked again.
+// are valid, and validates the result.
 func (c *Conditions) apply(op *core.Operating) (err error) {
 	if op.Blood, err = c.read(); err != nil {
 		return err
@@ -72,9 +70,6 @@ func (c *Conditions) apply(op *core.Operating) (err error) {
 	}
 	if op.Sieving, err = c.Sieving.Optional("sieving", core.DefaultSieving); err != nil {
 		return err
-	}
-	if op.Blood == nil && op.QF == 0 && op.Sieving == core.DefaultSieving {
-		return nil
 	}
 	return op.Validate()
 }

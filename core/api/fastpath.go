@@ -427,26 +427,7 @@ func (w *numberWriter) member(name string, x float64) {
 	w.number(x)
 }
 
-// number appends x as appendJSONFloat does, taking the answer's most
-// frequent numbers, whole ones from 0 to 999 (flows, 1, 0) and fractions
-// of moderate size, without its calls (a call costs about as much as a
-// digit under WebAssembly).
 func (w *numberWriter) number(x float64) {
-	if i := int64(x); float64(i) == x && uint64(i) < 1000 && (i != 0 || !math.Signbit(x)) {
-		switch {
-		case i < 10:
-			w.b = append(w.b, byte('0'+i))
-		case i < 100:
-			w.b = append(w.b, byte('0'+i/10), byte('0'+i%10))
-		default:
-			w.b = append(w.b, byte('0'+i/100), byte('0'+i/10%10), byte('0'+i%10))
-		}
-		return
-	}
-	if b, ok := appendShortestFraction(w.b, x); ok {
-		w.b = b
-		return
-	}
 	if x-x != 0 { // NaN or an infinity (x - x is NaN there, 0 elsewhere)
 		w.finite = false
 		w.b = append(w.b, '0')

@@ -677,11 +677,11 @@ func TestQuickNumber(t *testing.T) {
 	}
 }
 
-// TestApplyAqueousShortcut: Conditions.apply does not validate again an
-// aqueous solution without ultrafiltration at the default sieving, since
-// operating has validated the same point. Every point operating accepts,
-// at the bounds of core and between them, must then pass Validate.
-func TestApplyAqueousShortcut(t *testing.T) {
+// TestApplyDefaultConditions: Conditions.apply of absent conditions, or of
+// the defaults written out, gives an aqueous solution without
+// ultrafiltration at the default sieving, and every point operating
+// accepts, at the bounds of core and between them, stays valid with them.
+func TestApplyDefaultConditions(t *testing.T) {
 	flows := []float64{core.MinFlow, 0.5, 1, 300, 499.99, 500, core.MaxFlow}
 	koas := []float64{0, core.MinFlow, 800, core.MaxKoA}
 	concentrations := []float64{0, 1e-30, 1, 1e3, core.MaxConcentration}
@@ -707,7 +707,7 @@ func TestApplyAqueousShortcut(t *testing.T) {
 								t.Fatalf("apply of the default conditions gave %+v", o)
 							}
 							if err := o.Validate(); err != nil {
-								t.Errorf("apply skipped the check of %+v, which fails: %v", o, err)
+								t.Errorf("apply to %+v passed a point that fails Validate: %v", o, err)
 							}
 						}
 						checked++

@@ -6,8 +6,8 @@ import "math"
 // strconv.AppendFloat(b, x, 'f', -1, 64)'s form (the shortest decimal that
 // reads back as x, and of those the closest to x) when 2^-6 <= |x| < 2^53,
 // and reports whether it did; for an integer, or outside that range, it
-// appends nothing and returns false. Under WebAssembly it takes about half of strconv's time
-// (README, Performance): strconv's search (Ryū) multiplies 64 by 128 bits,
+// appends nothing and returns false. Under WebAssembly it takes about half
+// of strconv's time (README, Performance): strconv's search (Ryū) multiplies 64 by 128 bits,
 // which that backend builds from 32-bit pieces, and branches much, which
 // it takes through a dispatch on the block number.
 //
@@ -68,12 +68,7 @@ func appendShortestFraction(b []byte, x float64) ([]byte, bool) {
 	// block number, so the loop below has one test per digit, and the
 	// digits go to a buffer indexed without a bounds test.
 	var buf [64]byte
-	i := 23
-	if whole < 10 && u>>63 == 0 { // most of the answers' fractions: 0.8, 2.7
-		buf[23] = byte('0' + whole)
-	} else {
-		i = appendWhole(&buf, whole, u>>63 != 0)
-	}
+	i := appendWhole(&buf, whole, u>>63 != 0)
 	buf[24] = '.'
 	// r < one = 2^60, so 10 r fits in 64 bits; below and above are below
 	// one until the loop ends (which it does by the 19th digit, when above

@@ -5,6 +5,8 @@ import (
 	"slices"
 	"strings"
 
+	"github.com/goccy/go-json"
+
 	"clearkit/core"
 )
 
@@ -23,10 +25,10 @@ func respondSize(r *SizeResponse, fast bool) []byte {
 		return respond(r, nil)
 	}
 	r.Sweep = nil
-	b := respond(r, nil)
+	b, err := json.Marshal(r)
 	r.Sweep = sweep
-	if len(b) < len(`{"ok":true}`) || string(b[:len(`{"ok":true`)]) != `{"ok":true` || b[len(b)-1] != '}' {
-		return b // a failure: the answer without its sweep could not be encoded
+	if err != nil {
+		return respond(r, nil) // what could not be encoded: the general encoder says so
 	}
 	b, ok := appendSizeSweep(append(b[:len(b)-1], `,"sweep":`...), sweep)
 	if !ok {
