@@ -101,7 +101,7 @@ func compare(dst []byte, storage []float64, request []byte, packed, fast bool) (
 		resp.Sweeps = &sweeps
 		return respondCompare(dst, &resp, false), nil
 	}
-	packing := Packing{Points: s.Points(), Series: packedSeries}
+	packing := Packing{Into: "sweeps", Points: s.Points(), Series: packedSeries}
 	resp.Packed = &packing
 	if !finite(s.Packed()) {
 		// What respond would refuse in the JSON (see respond).

@@ -48,22 +48,30 @@ type Entry struct {
 }
 
 // MaxPackedBytes is the most bytes the packed series of any answer take:
-// every series of core.PackedSeries at core.MaxSweepPoints, 8 bytes a value.
+// every series of core.PackedSeries at core.MaxSweepPoints, 8 bytes a value
+// (size's six series of at most as many points take less:
+// TestMaxPackedBytes).
 const MaxPackedBytes = 8 * len(core.PackedSeries) * core.MaxSweepPoints
 
 // Packing is the "packed" member of a response whose chart series were
-// returned apart from the JSON: Series names them, as "axis.member" with
-// their JSON names, in the order they lie end to end, Points values each.
+// returned apart from the JSON. Series names them, as "name.member" within
+// the answer's member Into ("qb.x" within "sweeps" is sweeps.qb.x), in the
+// order they lie end to end: Points values each, or, when the series
+// differ in length, Lengths[k] values for series k (Points is then 0).
+// Into holds the answer's other chart values, if any (size's axis tops
+// and ceilings); compare's has none and its answer has no "sweeps".
 type Packing struct {
-	Points int      `json:"points"`
-	Series []string `json:"series"`
+	Into    string   `json:"into"`
+	Points  int      `json:"points,omitempty"`
+	Lengths []int    `json:"lengths,omitempty"`
+	Series  []string `json:"series"`
 }
 
 // Entries lists every calculation the bridge exposes, in the order the
 // README documents them.
 var Entries = []Entry{
 	{Name: "compare", Call: Compare, Append: AppendCompare, Packed: ComparePacked},
-	{Name: "size", Call: Size},
+	{Name: "size", Call: Size, Append: AppendSize, Packed: SizePacked},
 	{Name: "check", Call: Check},
 	{Name: "dialysance", Call: Dialysance},
 	{Name: "flowcheck", Call: FlowCheck},

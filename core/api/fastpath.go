@@ -310,7 +310,10 @@ func appendCompare(b []byte, r *CompareResponse) ([]byte, bool) {
 	w.member(`,"flow_ratio":`, r.FlowRatio)
 	w.member(`,"qbw":`, r.QBW)
 	if p := r.Packed; p != nil {
-		w.b = append(w.b, `,"packed":{"points":`...)
+		if p.Into != "sweeps" || p.Lengths != nil || p.Points == 0 {
+			return nil, false // not compare's: the general encoder writes it
+		}
+		w.b = append(w.b, `,"packed":{"into":"sweeps","points":`...)
 		w.b = strconv.AppendInt(w.b, int64(p.Points), 10)
 		switch {
 		case p.Series == nil:
@@ -380,7 +383,7 @@ var answerMembers = []string{
 	"cocurrent.cbo", "cocurrent.cdo", "cocurrent.transfer_rate",
 	"cocurrent.log_mean_difference", "cocurrent.clearance_ceiling", "cocurrent.dialysance_ceiling",
 	"countercurrent_gain", "countercurrent_gain_percent", "ntu", "flow_ratio", "qbw",
-	"packed.points", "packed.series",
+	"packed.into", "packed.points", "packed.lengths", "packed.series",
 }
 
 // answerKnown is whether answerMembers are all the members of the answer's

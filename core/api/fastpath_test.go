@@ -327,8 +327,9 @@ func TestDecodeFastMembers(t *testing.T) {
 // TestAppendCompareMembers fills every member of an answer with a value
 // that is not zero, through reflection, so that a member added to the
 // answer's types shows here even when no request sets it, and wants the
-// general encoder's bytes from appendCompare. Sweeps is left nil: an
-// answer with sweeps goes to the general encoder.
+// general encoder's bytes from appendCompare. Sweeps is left nil (an
+// answer with sweeps goes to the general encoder), and the packing is
+// compare's.
 func TestAppendCompareMembers(t *testing.T) {
 	if got := jsonMembers(reflect.TypeFor[CompareResponse](), ""); !slices.Equal(got, answerMembers) {
 		t.Fatalf("the answer's members are %q,\nappendCompare writes %q (answerMembers): add the new member to both, in fastpath.go", got, answerMembers)
@@ -338,6 +339,9 @@ func TestAppendCompareMembers(t *testing.T) {
 		var r CompareResponse
 		fill(reflect.ValueOf(&r).Elem(), rng, i%2 == 0)
 		r.Sweeps = nil
+		if p := r.Packed; p != nil { // compare's packing (another is declined: below)
+			p.Into, p.Lengths, p.Points = "sweeps", nil, max(p.Points, 1)
+		}
 		if i%3 == 0 { // the values the answer repeats, which numberWriter copies
 			for _, p := range []*core.Performance{&r.Countercurrent, &r.Cocurrent} {
 				p.Dialysance, p.TransferRate, p.DialysanceCeiling = p.Clearance, p.Clearance, p.ClearanceCeiling
@@ -370,17 +374,28 @@ func TestAppendCompareMembers(t *testing.T) {
 		t.Errorf("appendCompare with sweeps: accepted, want declined")
 	}
 	for _, name := range []string{`a"b`, `a\b`, "a<b", "a&b", "é", "a\nb", ""} {
-		r := CompareResponse{OK: true, Packed: &Packing{Points: 3, Series: []string{"qb.x", name}}}
+		r := CompareResponse{OK: true, Packed: &Packing{Into: "sweeps", Points: 3, Series: []string{"qb.x", name}}}
 		want, _ := json.Marshal(&r)
 		if got, ok := appendCompare(nil, &r); ok && !bytes.Equal(got, want) {
 			t.Errorf("appendCompare with the series name %q = %s, want %s or declined", name, got, want)
 		}
 	}
 	for _, series := range [][]string{nil, {}, packedSeries} {
-		r := CompareResponse{OK: true, Packed: &Packing{Points: 101, Series: series}}
+		r := CompareResponse{OK: true, Packed: &Packing{Into: "sweeps", Points: 101, Series: series}}
 		want, _ := json.Marshal(&r)
 		if got, ok := appendCompare(nil, &r); !ok || !bytes.Equal(got, want) {
 			t.Errorf("appendCompare with the series %q = %s, %v, want %s", series, got, ok, want)
+		}
+	}
+	// Another entry's packing (size's: series of their own lengths, into
+	// its "sweep") is left to the general encoder, which writes it whole.
+	for _, p := range []Packing{
+		{Into: "sweep", Lengths: []int{3, 3}, Series: []string{"a.b", "c.d"}},
+		{Into: "sweeps", Lengths: []int{3}, Series: []string{"qb.x"}},
+		{Into: "sweeps", Series: []string{"qb.x"}},
+	} {
+		if got, ok := appendCompare(nil, &CompareResponse{OK: true, Packed: &p}); ok {
+			t.Errorf("appendCompare with the packing %+v = %s, want declined", p, got)
 		}
 	}
 }

@@ -4,6 +4,8 @@ import (
 	"bytes"
 	"encoding/json"
 	"math"
+	"reflect"
+	"strconv"
 	"strings"
 	"testing"
 
@@ -13,66 +15,89 @@ import (
 
 // checkPacked: an entry's Packed answer is its Call answer (full) with the
 // chart series moved out of the JSON: the same bytes when there are no
-// series (a failure, or no sweep asked for); otherwise the same members
-// but "sweeps", a "packed" member naming the series in core.PackedSeries
-// order, and the values bit for bit (JSON's shortest form reads back
-// exactly, so the comparison is exact).
+// series (a failure, or no sweep asked for); otherwise the same answer
+// but for the series, named in a "packed" member (api.Packing) as paths
+// within its "into" member and laid end to end, bit for bit the JSON's
+// (JSON's shortest form reads back exactly, so the comparison is exact),
+// and the objects that held nothing else left out.
 func checkPacked(t *testing.T, e api.Entry, request, full []byte) {
 	t.Helper()
 	resp, series := e.Packed(nil, nil, request)
-	var fullMembers map[string]json.RawMessage
-	if err := json.Unmarshal(full, &fullMembers); err != nil {
+	var want, got map[string]any
+	if err := json.Unmarshal(full, &want); err != nil {
 		t.Fatalf("%s(%q) = %s: %v", e.Name, request, full, err)
 	}
-	sweeps, hasSweeps := fullMembers["sweeps"]
-	if !hasSweeps {
+	_, sweeps := want["sweeps"]
+	_, sweep := want["sweep"]
+	if !sweeps && !sweep {
 		if !bytes.Equal(resp, full) || series != nil {
 			t.Fatalf("packed %s(%q) = %s with %d series values, want %s and none", e.Name, request, resp, len(series), full)
 		}
 		return
 	}
-	var members map[string]json.RawMessage
-	if err := json.Unmarshal(resp, &members); err != nil {
+	if err := json.Unmarshal(resp, &got); err != nil {
 		t.Fatalf("packed %s(%q) = %s: %v", e.Name, request, resp, err)
 	}
-	if _, ok := members["sweeps"]; ok {
-		t.Fatalf("packed %s(%q) = %s, still with sweeps", e.Name, request, resp)
-	}
-	for k, v := range fullMembers {
-		if k != "sweeps" && !bytes.Equal(members[k], v) {
-			t.Fatalf("packed %s(%q): %s = %s, want %s", e.Name, request, k, members[k], v)
-		}
-	}
+	raw, _ := json.Marshal(got["packed"])
 	var packing api.Packing
-	if err := json.Unmarshal(members["packed"], &packing); err != nil {
-		t.Fatalf("packed %s(%q): packed = %s: %v", e.Name, request, members["packed"], err)
+	if err := json.Unmarshal(raw, &packing); err != nil || packing.Into == "" {
+		t.Fatalf("packed %s(%q) = %s: no packing (%v)", e.Name, request, resp, err)
 	}
-	if len(members) != len(fullMembers) {
-		t.Fatalf("packed %s(%q) has members %d, want %d (sweeps replaced by packed)", e.Name, request, len(members), len(fullMembers))
+	if packing.Lengths != nil && (packing.Points != 0 || len(packing.Lengths) != len(packing.Series)) {
+		t.Fatalf("packed %s(%q): packing %s gives points %d and %d lengths for %d series", e.Name, request, raw, packing.Points, len(packing.Lengths), len(packing.Series))
 	}
-	if len(packing.Series) != len(core.PackedSeries) || len(series) != packing.Points*len(packing.Series) {
-		t.Fatalf("packed %s(%q): %d series of %d points and %d values, want %d series", e.Name, request, len(packing.Series), packing.Points, len(series), len(core.PackedSeries))
-	}
-	var want map[string]map[string][]float64
-	if err := json.Unmarshal(sweeps, &want); err != nil {
-		t.Fatal(err)
-	}
+	delete(got, "packed")
+	at := 0
 	for k, name := range packing.Series {
-		if name != core.PackedSeries[k] {
-			t.Fatalf("packed series %d is %q, want %q", k, name, core.PackedSeries[k])
+		n := packing.Points
+		if packing.Lengths != nil {
+			n = packing.Lengths[k]
 		}
-		axis, member, _ := strings.Cut(name, ".")
-		values := want[axis][member]
-		got := series[k*packing.Points : (k+1)*packing.Points]
-		if len(values) != len(got) {
-			t.Fatalf("packed %s(%q): %s has %d points, JSON %d", e.Name, request, name, len(got), len(values))
+		if n < 0 || at+n > len(series) {
+			t.Fatalf("packed %s(%q): series %s runs past the %d values", e.Name, request, name, len(series))
 		}
-		for i := range values {
-			if math.Float64bits(got[i]) != math.Float64bits(values[i]) {
-				t.Fatalf("packed %s(%q): %s[%d] = %v, JSON %v", e.Name, request, name, i, got[i], values[i])
+		path := append([]string{packing.Into}, strings.Split(name, ".")...)
+		values, ok := take(want, path).([]any)
+		if !ok || len(values) != n {
+			t.Fatalf("packed %s(%q): %s has %d values, the JSON answer %d", e.Name, request, name, n, len(values))
+		}
+		for i, v := range values {
+			if x := series[at+i]; math.Float64bits(x) != math.Float64bits(v.(float64)) {
+				t.Fatalf("packed %s(%q): %s[%d] = %v, JSON %v", e.Name, request, name, i, x, v)
 			}
 		}
+		at += n
 	}
+	if at != len(series) {
+		t.Fatalf("packed %s(%q): %d values, the series name %d", e.Name, request, len(series), at)
+	}
+	if !reflect.DeepEqual(got, want) {
+		g, _ := json.Marshal(got)
+		w, _ := json.Marshal(want)
+		t.Fatalf("packed %s(%q) without its series = %s,\nthe JSON answer without them %s", e.Name, request, g, w)
+	}
+}
+
+// take removes the value at path from the objects under m and returns it;
+// an object left empty on the way goes too.
+func take(m map[string]any, path []string) any {
+	v, ok := m[path[0]]
+	if !ok {
+		return nil
+	}
+	if len(path) == 1 {
+		delete(m, path[0])
+		return v
+	}
+	inner, ok := v.(map[string]any)
+	if !ok {
+		return nil
+	}
+	v = take(inner, path[1:])
+	if len(inner) == 0 {
+		delete(m, path[0])
+	}
+	return v
 }
 
 func TestComparePacked(t *testing.T) {
@@ -89,11 +114,64 @@ func TestComparePacked(t *testing.T) {
 		checkPacked(t, entry, []byte(request), api.Compare([]byte(request)))
 	}
 	resp, series := api.ComparePacked(nil, nil, []byte(`{"qb":300,"qd":500,"koa":800,"sweep":{}}`))
-	if !bytes.Contains(resp, []byte(`"packed":{"points":101,"series":["qb.x",`)) || len(series) != 15*101 {
+	if !bytes.Contains(resp, []byte(`"packed":{"into":"sweeps","points":101,"series":["qb.x",`)) || len(series) != 15*101 {
 		t.Errorf("ComparePacked with sweep {} = %s and %d values, want 101 points of the 15 series", resp, len(series))
 	}
 	// The default QB range is 25 to max(600, 2 QB) mL/min (core.SweepSpec).
 	if series[0] != 25 || series[100] != 600 {
 		t.Errorf("packed qb.x runs from %v to %v, want 25 to 600", series[0], series[100])
+	}
+}
+
+// TestSizePacked: size's packed answer is its JSON answer with the series
+// apart, for the size requests of every kind (sizeRequests' variants: with
+// and without areas, series of their own lengths near the ceiling, whole
+// blood, failures); the view's request packs 6 series and keeps the axis
+// tops and ceilings in "sweep".
+func TestSizePacked(t *testing.T) {
+	entry := api.Entry{Name: "size", Call: api.Size, Packed: api.SizePacked}
+	packedSome := 0
+	for _, request := range api.SizeRequestsForTest() {
+		full := api.Size([]byte(request))
+		checkPacked(t, entry, []byte(request), full)
+		if _, series := api.SizePacked(nil, nil, []byte(request)); len(series) > 0 {
+			packedSome++
+		}
+	}
+	if packedSome < 20 {
+		t.Errorf("only %d size answers had packed series", packedSome)
+	}
+	// The size view's request (site/js/size-view.js, its demo).
+	view := `{"target_clearance":"250","qb":"300","qd":"500","flow":"countercurrent","qf":"","sieving":"","hct":"","plasma_water":"","red_cell_water":"","k0":"0.05","margin_percent":"10","sweep":{},"current_filter":{"koa":"700","area_m2":""},"qd_range":["300","800"],"qb_range":["150","450"],"filters":[{"label":"Shelf A","area_m2":"1.4","koa":""},{"label":"Shelf B","area_m2":"1.8","koa":""},{"label":"Shelf C","area_m2":"2.1","koa":""}]}`
+	checkPacked(t, entry, []byte(view), api.Size([]byte(view)))
+	resp, series := api.SizePacked([]byte("kept"), nil, []byte(view))
+	if !bytes.HasPrefix(resp, []byte(`kept{"ok":true`)) || !bytes.Contains(resp, []byte(`"packed":{"into":"sweep","lengths":[`)) ||
+		!bytes.Contains(resp, []byte(`,"series":["countercurrent.target","countercurrent.koa","countercurrent.area_m2","cocurrent.target","cocurrent.koa","cocurrent.area_m2"]}}`)) {
+		t.Errorf("SizePacked(the view's request) = %s", resp)
+	}
+	if len(series) < 6*90 || 8*len(series) > api.MaxPackedBytes {
+		t.Errorf("SizePacked(the view's request) gives %d values, want 6 series of about 101 within %d bytes", len(series), api.MaxPackedBytes)
+	}
+	// The packing is what the general encoder writes of an api.Packing.
+	var answer struct{ Packed json.RawMessage }
+	if err := json.Unmarshal(resp[len("kept"):], &answer); err != nil {
+		t.Fatal(err)
+	}
+	var p api.Packing
+	if err := json.Unmarshal(answer.Packed, &p); err != nil {
+		t.Fatal(err)
+	}
+	if again, _ := json.Marshal(p); !bytes.Equal(again, answer.Packed) {
+		t.Errorf("packed = %s, an api.Packing encodes as %s", answer.Packed, again)
+	}
+}
+
+// TestMaxPackedBytes: the page's buffer holds size's largest packed series
+// (six series of core.MaxSweepPoints each).
+func TestMaxPackedBytes(t *testing.T) {
+	request := `{"target_clearance":250,"qb":300,"qd":500,"k0":0.05,"sweep":{"points":` + strconv.Itoa(core.MaxSweepPoints) + `}}`
+	_, series := api.SizePacked(nil, nil, []byte(request))
+	if len(series) == 0 || 8*len(series) > api.MaxPackedBytes {
+		t.Errorf("size with %d points packs %d values (%d bytes), the page's buffer holds %d", core.MaxSweepPoints, len(series), 8*len(series), api.MaxPackedBytes)
 	}
 }

@@ -76,25 +76,41 @@ type SizeResponse struct {
 // same order and refuses a target at or above the ceiling with the
 // ceiling in error.limit.
 func Size(request []byte) []byte {
-	return size(request, true)
+	response, _ := size(nil, nil, request, false, true)
+	return response
 }
 
-// size answers Size; with fast false it encodes the whole answer with the
-// general encoder (see respondSize).
-func size(request []byte, fast bool) []byte {
+// AppendSize is Size with the response appended to dst (see Entry.Append).
+func AppendSize(dst, request []byte) []byte {
+	response, _ := size(dst, nil, request, false, true)
+	return response
+}
+
+// SizePacked answers a SizeRequest like AppendSize, with the chart
+// series, when the request asks for them, returned apart from the JSON
+// (see Entry.Packed and Packing): the answer's "sweep" keeps its axis tops
+// and ceilings, and "packed" names its series, which differ in length.
+func SizePacked(dst []byte, storage []float64, request []byte) ([]byte, []float64) {
+	return size(dst, storage, request, true, true)
+}
+
+// size answers all three, appending the response to dst and the packed
+// series to storage (when it has room); with fast false it encodes the
+// whole answer with the general encoder (see respondSize).
+func size(dst []byte, storage []float64, request []byte, packed, fast bool) ([]byte, []float64) {
 	var req SizeRequest
 	if err := decode(request, &req); err != nil {
-		return failure(err)
+		return appendTo(dst, failure(err)), nil
 	}
 	spec, err := req.spec()
 	if err != nil {
-		return failure(err)
+		return appendTo(dst, failure(err)), nil
 	}
 	s, err := core.Size(spec)
 	if err != nil {
-		return failure(err)
+		return appendTo(dst, failure(err)), nil
 	}
-	return respondSize(&SizeResponse{
+	return respondSize(dst, storage, &SizeResponse{
 		OK: true,
 		Input: SizeInput{
 			TargetClearance: spec.Target,
@@ -107,7 +123,7 @@ func size(request []byte, fast bool) []byte {
 			MarginPercent:   spec.MarginPercent,
 		},
 		Sizing: s,
-	}, fast)
+	}, packed, fast)
 }
 
 func (r *SizeRequest) spec() (s core.SizeSpec, err error) {

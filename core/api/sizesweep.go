@@ -3,6 +3,7 @@ package api
 import (
 	"reflect"
 	"slices"
+	"strconv"
 	"strings"
 
 	"github.com/goccy/go-json"
@@ -10,39 +11,94 @@ import (
 	"clearkit/core"
 )
 
-// respondSize encodes a successful size. With fast, its chart series (some
-// 600 numbers: most of the answer's bytes, and under WebAssembly most of
-// its time through the general encoder, which writes a float in about
-// twice the time of appendJSONFloat) are written by appendSizeSweep, and
-// the rest of the answer by respond; the bytes are the general encoder's
-// (TestSizeSweepWriter, FuzzSizeSweepWriter). "sweep" is the answer's last
-// member, so the answer without it, less its closing brace, is followed by
-// the sweep and the brace. Without fast, or should the answer's types
-// change (sizeSweepKnown), respond writes it all.
-func respondSize(r *SizeResponse, fast bool) []byte {
+// respondSize appends a successful size to dst. With fast, its chart
+// series (some 600 numbers: most of the answer's bytes, and under
+// WebAssembly most of its time through the general encoder, which writes
+// a float in about twice the time of appendJSONFloat) are written by
+// appendSizeSweep, and the rest of the answer by the general encoder; the
+// bytes are the general encoder's (TestSizeSweepWriter,
+// FuzzSizeSweepWriter). "sweep" is the answer's last member, so the
+// answer without it, less its closing brace, is followed by the sweep and
+// the brace. With packed as well, the sweep keeps its axis tops and
+// ceilings, its series are copied end to end into storage (grown when it
+// has no room) and returned, and a "packed" member after the sweep names
+// them (packSizeSweep). Without fast, or should the answer's types change
+// (sizeSweepKnown), the general encoder writes it all, series included.
+func respondSize(dst []byte, storage []float64, r *SizeResponse, packed, fast bool) ([]byte, []float64) {
 	sweep := r.Sweep
 	if !fast || sweep == nil || !sizeSweepKnown {
-		return respond(r, nil)
+		return appendTo(dst, respond(r, nil)), nil
 	}
 	r.Sweep = nil
 	b, err := json.Marshal(r)
 	r.Sweep = sweep
 	if err != nil {
-		return respond(r, nil) // what could not be encoded: the general encoder says so
+		return appendTo(dst, respond(r, nil)), nil // what could not be encoded: the general encoder says so
 	}
-	b, ok := appendSizeSweep(append(b[:len(b)-1], `,"sweep":`...), sweep)
-	if !ok {
-		return respond(r, nil) // a number that is not finite: the general encoder says so
+	out := append(append(dst, b[:len(b)-1]...), `,"sweep":`...)
+	var series []float64
+	if packed {
+		series = packSizeSweep(storage[:0], sweep)
 	}
-	return append(b, '}')
+	out, ok := appendSizeSweep(out, sweep, packed)
+	if !ok || !finite(series) {
+		return appendTo(dst, respond(r, nil)), nil // a number that is not finite: the general encoder says so
+	}
+	if packed {
+		out = appendSizePacking(out, sweep)
+	}
+	return append(out, '}'), series
 }
 
-// appendSizeSweep appends s as the general encoder writes it, and reports
-// whether every number was finite (the general encoder refuses the
-// others). A member added to core.SizeSweep or core.SizeSeries must be
-// added here and to sizeSweepMembers: TestSizeSweepWriter fails until it
-// is, and until then every answer goes to the general encoder.
-func appendSizeSweep(b []byte, s *core.SizeSweep) ([]byte, bool) {
+// sizeSeriesNames are the names of the packed series of a size answer, in
+// the order packSizeSweep lays them: the areas only when the answer has
+// them (the one or the other line).
+var sizeSeriesNames = [2][]string{
+	{"countercurrent.target", "countercurrent.koa", "cocurrent.target", "cocurrent.koa"},
+	{"countercurrent.target", "countercurrent.koa", "countercurrent.area_m2", "cocurrent.target", "cocurrent.koa", "cocurrent.area_m2"},
+}
+
+// sizeSeriesOf lists s's series in the order of sizeSeriesNames.
+func sizeSeriesOf(s *core.SizeSweep) ([]string, [][]float64) {
+	c, o := &s.Countercurrent, &s.Cocurrent
+	if len(c.AreaM2) == 0 {
+		return sizeSeriesNames[0], [][]float64{c.Target, c.KoA, o.Target, o.KoA}
+	}
+	return sizeSeriesNames[1], [][]float64{c.Target, c.KoA, c.AreaM2, o.Target, o.KoA, o.AreaM2}
+}
+
+// packSizeSweep appends s's series end to end to storage.
+func packSizeSweep(storage []float64, s *core.SizeSweep) []float64 {
+	_, series := sizeSeriesOf(s)
+	for _, xs := range series {
+		storage = append(storage, xs...)
+	}
+	return storage
+}
+
+// appendSizePacking appends the "packed" member of a packed size answer,
+// as the general encoder writes a Packing (TestSizePacked).
+func appendSizePacking(b []byte, s *core.SizeSweep) []byte {
+	names, series := sizeSeriesOf(s)
+	b = append(b, `,"packed":{"into":"sweep","lengths":[`...)
+	for k, xs := range series {
+		if k > 0 {
+			b = append(b, ',')
+		}
+		b = strconv.AppendInt(b, int64(len(xs)), 10)
+	}
+	b = append(b, ']')
+	b, _ = appendSeriesNames(b, names) // plain names: TestSizePacked
+	return b
+}
+
+// appendSizeSweep appends s as the general encoder writes it, its series
+// left out when packed, and reports whether every number was finite (the
+// general encoder refuses the others). A member added to core.SizeSweep
+// or core.SizeSeries must be added here and to sizeSweepMembers:
+// TestSizeSweepWriter fails until it is, and until then every answer goes
+// to the general encoder.
+func appendSizeSweep(b []byte, s *core.SizeSweep, packed bool) ([]byte, bool) {
 	w := numberWriter{b: b, finite: true}
 	w.b = append(w.b, `{"koa_max":`...)
 	w.number(s.KoAMax)
@@ -50,14 +106,19 @@ func appendSizeSweep(b []byte, s *core.SizeSweep) ([]byte, bool) {
 		w.member(`,"area_m2_max":`, *s.AreaM2Max)
 	}
 	w.b = append(w.b, `,"countercurrent":`...)
-	w.sizeSeries(&s.Countercurrent)
+	w.sizeSeries(&s.Countercurrent, packed)
 	w.b = append(w.b, `,"cocurrent":`...)
-	w.sizeSeries(&s.Cocurrent)
+	w.sizeSeries(&s.Cocurrent, packed)
 	w.b = append(w.b, '}')
 	return w.b, w.finite
 }
 
-func (w *numberWriter) sizeSeries(s *core.SizeSeries) {
+func (w *numberWriter) sizeSeries(s *core.SizeSeries, packed bool) {
+	if packed {
+		w.member(`{"clearance_ceiling":`, s.ClearanceCeiling)
+		w.b = append(w.b, '}')
+		return
+	}
 	w.b = append(w.b, `{"target":`...)
 	w.list(s.Target)
 	w.b = append(w.b, `,"koa":`...)

@@ -32,8 +32,24 @@ func TestSizeSweepWriter(t *testing.T) {
 		if err != nil {
 			t.Fatal(err)
 		}
-		if got, ok := appendSizeSweep([]byte("x"), s); !ok || !bytes.Equal(got[1:], want) || got[0] != 'x' {
+		if got, ok := appendSizeSweep([]byte("x"), s, false); !ok || !bytes.Equal(got[1:], want) || got[0] != 'x' {
 			t.Fatalf("appendSizeSweep = %s, %v,\nwant x%s (goccy/go-json)", got, ok, want)
+		}
+		// Packed, the series are left out and the rest is as before.
+		type ceiling struct {
+			ClearanceCeiling float64 `json:"clearance_ceiling"`
+		}
+		want, err = json.Marshal(struct {
+			KoAMax         float64  `json:"koa_max"`
+			AreaM2Max      *float64 `json:"area_m2_max,omitempty"`
+			Countercurrent ceiling  `json:"countercurrent"`
+			Cocurrent      ceiling  `json:"cocurrent"`
+		}{s.KoAMax, s.AreaM2Max, ceiling{s.Countercurrent.ClearanceCeiling}, ceiling{s.Cocurrent.ClearanceCeiling}})
+		if err != nil {
+			t.Fatal(err)
+		}
+		if got, ok := appendSizeSweep(nil, s, true); !ok || !bytes.Equal(got, want) {
+			t.Fatalf("appendSizeSweep, packed = %s, %v,\nwant %s (goccy/go-json)", got, ok, want)
 		}
 	}
 	for i := range 300 {
@@ -66,7 +82,7 @@ func TestSizeSweepWriter(t *testing.T) {
 			default:
 				s.Cocurrent.ClearanceCeiling = x
 			}
-			if _, ok := appendSizeSweep(nil, &s); ok {
+			if _, ok := appendSizeSweep(nil, &s, false); ok {
 				t.Errorf("appendSizeSweep with %v at place %d: accepted, want declined", x, place)
 			}
 		}
@@ -97,12 +113,16 @@ func sizeRequests() []string {
 		`{"target_clearance":400,"qb":300,"qd":500,"sweep":{}}`, `{"qb":300,"sweep":{}}`, `{`)
 }
 
+// SizeRequestsForTest gives sizeRequests to the package's external tests.
+func SizeRequestsForTest() []string { return sizeRequests() }
+
 // TestSizeBothWays: every request of sizeRequests gets the same bytes with
 // the series written by appendSizeSweep as from the general encoder.
 func TestSizeBothWays(t *testing.T) {
 	withSeries := 0
 	for _, request := range sizeRequests() {
-		fast, general := size([]byte(request), true), size([]byte(request), false)
+		fast, _ := size(nil, nil, []byte(request), false, true)
+		general, _ := size(nil, nil, []byte(request), false, false)
 		if !bytes.Equal(fast, general) {
 			t.Errorf("size(%s):\nwith appendSizeSweep %s\ngeneral encoder      %s", request, clip(string(fast)), clip(string(general)))
 		}
@@ -121,7 +141,9 @@ func FuzzSizeSweepWriter(f *testing.F) {
 		f.Add([]byte(request))
 	}
 	f.Fuzz(func(t *testing.T, request []byte) {
-		if fast, general := size(request, true), size(request, false); !bytes.Equal(fast, general) {
+		fast, _ := size(nil, nil, request, false, true)
+		general, _ := size(nil, nil, request, false, false)
+		if !bytes.Equal(fast, general) {
 			t.Errorf("size(%q):\nwith appendSizeSweep %s\ngeneral encoder      %s", request, clip(string(fast)), clip(string(general)))
 		}
 	})

@@ -21,7 +21,14 @@ export function button(text, className, onClick) {
 // element already has still makes the browser style and lay it out again,
 // and the views write their results on every keystroke.
 export function setText(node, text) {
-  if (node.textContent !== text) node.textContent = text;
+  const child = node.firstChild;
+  const single = child !== null && child.nodeType === Node.TEXT_NODE && child.nextSibling === null;
+  if (single ? child.data === text : node.textContent === text) return;
+  // A new text in place of another changes the text node's data: a new
+  // node (textContent) is laid out from nothing, and may restyle its
+  // parent (:empty). An empty text removes the node.
+  if (single && text !== '') child.data = text;
+  else node.textContent = text;
 }
 
 export function setHidden(node, hidden) {

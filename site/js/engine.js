@@ -45,22 +45,27 @@ export async function loadEngine(url = 'clearkit.wasm') {
 }
 
 // unpack puts the chart series the module wrote into bytes back where the
-// JSON answer would have held them: answer.packed = {points, series:
-// ["qb.x", "qb.countercurrent", ...]} names them in the order they lie
-// end to end, and each becomes answer.sweeps.qb.x and so on, a
-// Float64Array of its own copy of the values (the buffer is reused).
+// JSON answer would have held them: answer.packed = {into, points or
+// lengths, series} names them, as paths within answer[into], in the order
+// they lie end to end, points values each or lengths[k] for series k
+// (compare's {into: "sweeps", points: 101, series: ["qb.x", ...]} makes
+// answer.sweeps.qb.x and so on). Each becomes a Float64Array of its own
+// copy of the values (the buffer is reused).
 export function unpack(answer, bytes) {
   const packed = answer.packed;
   if (!packed) return answer;
-  const { points, series } = packed;
-  const values = new Float64Array(bytes.buffer.slice(bytes.byteOffset, bytes.byteOffset + 8 * points * series.length));
-  const sweeps = {};
-  for (let k = 0; k < series.length; k++) {
-    const [axis, member] = seriesPath(series[k]);
-    (sweeps[axis] ??= {})[member] = values.subarray(k * points, (k + 1) * points);
+  const { into, points, lengths, series } = packed;
+  let total = 0;
+  for (let k = 0; k < series.length; k++) total += lengths ? lengths[k] : points;
+  const values = new Float64Array(bytes.buffer.slice(bytes.byteOffset, bytes.byteOffset + 8 * total));
+  const target = (answer[into] ??= {});
+  for (let k = 0, at = 0; k < series.length; k++) {
+    const n = lengths ? lengths[k] : points;
+    const [outer, member] = seriesPath(series[k]);
+    (target[outer] ??= {})[member] = values.subarray(at, at + n);
+    at += n;
   }
   delete answer.packed;
-  answer.sweeps = sweeps;
   return answer;
 }
 

@@ -2,6 +2,8 @@
 // shows the value at that path of a response, rounded for reading, and
 // keeps the full value in data-value.
 
+
+import { setText } from './dom.js';
 export function formatNumber(value, digits = 1, { percent = false, signed = false } = {}) {
   if (typeof value !== 'number' || !Number.isFinite(value)) return '–';
   const shown = percent ? value * 100 : value;
@@ -49,12 +51,8 @@ export function showNumber(out, value, digits, options) {
   const text = value === null && out.dataset.null !== undefined ? out.dataset.null : formatNumber(value, digits, options);
   const full = typeof value === 'number' ? String(value) : '';
   if (out.getAttribute('data-value') !== full) out.setAttribute('data-value', full);
-  const node = out.firstChild;
-  const single = node !== null && node.nodeType === Node.TEXT_NODE && node.nextSibling === null;
-  if (single ? node.data === text : out.textContent === text) return;
+  if (out.textContent === text) return;
   const chars = String(text.length);
   if (out.getAttribute('data-chars') !== chars) out.setAttribute('data-chars', chars);
-  // Changing the text node's data keeps the node: cheaper than a new one.
-  if (single) node.data = text;
-  else out.textContent = text;
+  setText(out, text);
 }
