@@ -431,25 +431,31 @@ func TestCheckViewSavedRecord(t *testing.T) {
 // A keystroke in the clearance test computes the check at once without
 // its uncertainty (one call) and the 95 % ranges a moment later (README,
 // Field checks): right after the input the numbers are the API's answer
-// to the request without the uncertainty fields and the ranges show an
-// ellipsis; once settled, every output is the whole request's answer. A
-// snapshot taken while the ranges are pending holds the whole answer.
+// to the request without the uncertainty fields, and the ranges keep what
+// they showed before the input, greyed, the results busy; once settled,
+// every output is the whole request's answer. A snapshot taken while the
+// ranges are pending holds the whole answer.
 func TestCheckViewIntervalLater(t *testing.T) {
 	p := openChecks(t)
 	at := func(m map[string]any, path string) any { v, _ := valueAt(m, path); return v }
 	type shown struct {
-		Pending, Clearance, Range, Snapshot string
+		Pending, Busy, Clearance, RangeBefore, Range, Opacity, Snapshot string
 	}
 	typeAndLook := func(snapshot bool) shown {
 		return eval[shown](p, fmt.Sprintf(`import('./js/views.js').then((m) => {
 			const input = document.getElementById('check-cbo');
+			const results = document.getElementById('check-results');
+			const range = results.querySelector('[data-out="uncertainty.koa_countercurrent.low"]');
+			const before = range.textContent;
 			input.value = '20';
 			input.dispatchEvent(new Event('input', { bubbles: true }));
-			const results = document.getElementById('check-results');
 			const look = {
 				Pending: results.dataset.pending || '',
+				Busy: results.getAttribute('aria-busy') || '',
 				Clearance: results.querySelector('[data-out="clearance"]').dataset.value,
-				Range: results.querySelector('[data-out="uncertainty.koa_countercurrent.low"]').textContent,
+				RangeBefore: before,
+				Range: range.textContent,
+				Opacity: getComputedStyle(range.closest('[data-pending-shows]')).opacity,
 				Snapshot: '',
 			};
 			if (%t) look.Snapshot = JSON.stringify(m.views.get('check').snapshot().result.clearance.uncertainty);
@@ -470,8 +476,10 @@ func TestCheckViewIntervalLater(t *testing.T) {
 		t.Fatalf("native: uncertainty %v without the fields, %v with them", first["uncertainty"], whole["uncertainty"])
 	}
 	got := typeAndLook(false)
-	if got.Pending != "true" || got.Range != "…" || got.Clearance != strconv.FormatFloat(first["clearance"].(float64), 'g', -1, 64) {
-		t.Errorf("right after the input: pending %q, KoA range %q, clearance %s; want true, an ellipsis, %v", got.Pending, got.Range, got.Clearance, first["clearance"])
+	if got.Pending != "true" || got.Busy != "true" || got.Range != got.RangeBefore || got.Range == "" || got.Opacity == "1" ||
+		got.Clearance != strconv.FormatFloat(first["clearance"].(float64), 'g', -1, 64) {
+		t.Errorf("right after the input: pending %q, busy %q, KoA range %q (before %q) at opacity %s, clearance %s; want true, true, the range before, greyed, %v",
+			got.Pending, got.Busy, got.Range, got.RangeBefore, got.Opacity, got.Clearance, first["clearance"])
 	}
 	p.settle()
 	wantShown(t, p, "#check-results", whole)
@@ -484,8 +492,8 @@ func TestCheckViewIntervalLater(t *testing.T) {
 	if low := at(u, "koa_countercurrent.low"); low != at(whole, "uncertainty.koa_countercurrent.low") {
 		t.Errorf("snapshot while pending: KoA low %v, want %v", low, at(whole, "uncertainty.koa_countercurrent.low"))
 	}
-	if pending := eval[string](p, `document.getElementById('check-results').dataset.pending || ''`); pending != "" {
-		t.Errorf("after the snapshot the results are still pending")
+	if pending := eval[string](p, `(() => { const r = document.getElementById('check-results'); return (r.dataset.pending || '') + (r.getAttribute('aria-busy') || ''); })()`); pending != "" {
+		t.Errorf("after the snapshot the results are still pending or busy (%q)", pending)
 	}
 }
 

@@ -128,11 +128,17 @@ function withoutUncertainty(request) {
 // leave out slow work) is answered in two calls: the cut one at once, the
 // whole one LATER_MS after the last input, or at flush(), which
 // snapshot() calls so that a record always holds the whole answer. Until
-// then the results carry data-pending and the outputs of the left-out
-// part show an ellipsis.
+// then the results carry data-pending and aria-busy, and the outputs of
+// the left-out part ([data-pending-shows]) keep what they showed, greyed
+// by style.css: rewriting them (to an ellipsis, say) would change their
+// width twice a keystroke and lay out the tables and grids around them
+// again each time.
 function bindCalculation(engine, name, form, results, request, render, split = () => null) {
   const state = { last: null, pending: null, timer: 0 };
-  const show = (response) => {
+  const later = new Set(results.querySelectorAll('[data-pending-shows] output'));
+  // show renders a response; cut says it is the answer to a cut request,
+  // which leaves the outputs of the left-out part as they are.
+  const show = (response, cut = false) => {
     if (!response.ok) {
       showError(form, response.error);
       results.classList.add('stale');
@@ -144,7 +150,7 @@ function bindCalculation(engine, name, form, results, request, render, split = (
     if (results.classList.contains('stale')) results.classList.remove('stale');
     setData(results, 'state', 'ok');
     state.last = response;
-    renderOutputs(results, response);
+    renderOutputs(results, response, cut ? later : null);
     showRanges(results);
     render(response);
     return true;
@@ -153,6 +159,7 @@ function bindCalculation(engine, name, form, results, request, render, split = (
     clearTimeout(state.timer);
     state.pending = null;
     delete results.dataset.pending;
+    results.removeAttribute('aria-busy');
   };
   state.flush = () => {
     const whole = state.pending;
@@ -164,10 +171,10 @@ function bindCalculation(engine, name, form, results, request, render, split = (
     settle();
     const whole = request();
     const first = split(whole);
-    if (!show(engine.call(name, first ?? whole)) || !first) return;
+    if (!show(engine.call(name, first ?? whole), first !== null) || !first) return;
     state.pending = whole;
     results.dataset.pending = 'true';
-    for (const out of results.querySelectorAll('[data-pending-shows] output')) setText(out, '…');
+    results.setAttribute('aria-busy', 'true');
     state.timer = setTimeout(state.flush, LATER_MS);
   };
   form.addEventListener('input', state.update);

@@ -2,8 +2,8 @@
 // shows the value at that path of a response, rounded for reading, and
 // keeps the full value in data-value.
 
-
 import { setText } from './dom.js';
+
 export function formatNumber(value, digits = 1, { percent = false, signed = false } = {}) {
   if (typeof value !== 'number' || !Number.isFinite(value)) return '–';
   const shown = percent ? value * 100 : value;
@@ -31,9 +31,11 @@ function howShown(out) {
   return how;
 }
 
-// renderOutputs fills every output under root from data (showNumber).
-export function renderOutputs(root, data) {
+// renderOutputs fills every output under root from data (showNumber),
+// but those in the set keep, which stay as they are.
+export function renderOutputs(root, data, keep = null) {
   for (const out of root.querySelectorAll('output[data-out]')) {
+    if (keep?.has(out)) continue;
     const how = howShown(out);
     let value = data;
     for (const key of how.keys) value = value == null ? undefined : value[key];
