@@ -497,6 +497,60 @@ func TestCheckViewIntervalLater(t *testing.T) {
 	}
 }
 
+// TestCheckViewIntervalFails: an uncertainty field in error lets the
+// check without the uncertainty through, and the whole request then
+// fails; the ranges kept from the inputs before must not stay on screen,
+// nor the results pending. Reference: the API's own error for the same
+// request (native), and the page's elements.
+func TestCheckViewIntervalFails(t *testing.T) {
+	p := openChecks(t)
+	req := map[string]string{}
+	for k, v := range demoClearance {
+		req[k] = v
+	}
+	req["flow_uncertainty_percent"] = "-5"
+	b, _ := json.Marshal(req)
+	var answer struct {
+		OK    bool `json:"ok"`
+		Error struct{ Field string }
+	}
+	if err := json.Unmarshal(api.Check(b), &answer); err != nil || answer.OK || answer.Error.Field != "flow_uncertainty_percent" {
+		t.Fatalf("native: %+v (%v), want an error naming flow_uncertainty_percent", answer, err)
+	}
+	ranges := `[...document.querySelectorAll('#check-results [data-pending-shows]')]`
+	before := eval[[]string](p, ranges+`.map((r) => r.textContent)`)
+	if len(before) == 0 || strings.Contains(strings.Join(before, "|"), "–") {
+		t.Fatalf("before: ranges %q, want every range shown", before)
+	}
+	p.reveal("#check-flow-uncertainty-percent")
+	p.typeInto("#check-flow-uncertainty-percent", "-5")
+	type look struct {
+		Error, State, Pending, Busy string
+		Ranges                      []string
+		ToShown                     bool
+	}
+	got := eval[look](p, `(() => {
+		const results = document.getElementById('check-results');
+		return {
+			Error: document.querySelector('#check-form [data-error-for="flow_uncertainty_percent"]').textContent,
+			State: results.dataset.state, Pending: results.dataset.pending || '', Busy: results.getAttribute('aria-busy') || '',
+			Ranges: `+ranges+`.map((r) => [...r.querySelectorAll('output')].map((o) => o.textContent).join(' ')),
+			ToShown: `+ranges+`.some((r) => [...r.querySelectorAll('.range-to')].some((s) => !s.hidden)),
+		};
+	})()`)
+	if got.Error == "" || got.State != "error" || got.Pending != "" || got.Busy != "" {
+		t.Errorf("flows ± -5: error %q, state %q, pending %q, busy %q; want an error beside the field, state error, nothing pending", got.Error, got.State, got.Pending, got.Busy)
+	}
+	for k, r := range got.Ranges {
+		if !strings.HasPrefix(r, "–") {
+			t.Errorf("flows ± -5: range %d shows %q, want a dash", k, r)
+		}
+	}
+	if got.ToShown {
+		t.Errorf("flows ± -5: a range's \" to \" is shown beside a dash")
+	}
+}
+
 // TestCheckViewInputChangesOnlyWhatDiffers: with the uncertainty fields
 // empty (one call, nothing pending), a new CBo rewrites what its answer
 // changes and keeps the findings' items (only their texts differ), and the

@@ -5,7 +5,7 @@
 // verdict comes from the API; this module only shows them.
 
 import { readForm, fillForm, showError } from './form.js';
-import { renderOutputs } from './format.js';
+import { renderOutputs, showNumber } from './format.js';
 import { setText, setHidden, setData } from './dom.js';
 
 // The sieving and whole-blood fields of the clearance test left blank: S 1,
@@ -101,7 +101,7 @@ function showFindings(list, findings) {
 function showRanges(root) {
   for (const range of root.querySelectorAll('.range')) {
     const [low, ...rest] = range.querySelectorAll('output, .range-to');
-    for (const el of rest) setHidden(el, low.dataset.value === '');
+    for (const el of rest) setHidden(el, (low.dataset.value ?? '') === '');
   }
 }
 
@@ -132,7 +132,9 @@ function withoutUncertainty(request) {
 // the left-out part ([data-pending-shows]) keep what they showed, greyed
 // by style.css: rewriting them (to an ellipsis, say) would change their
 // width twice a keystroke and lay out the tables and grids around them
-// again each time.
+// again each time. Should the whole request then fail (an uncertainty
+// field in error), those outputs go to a dash: what they kept belongs to
+// earlier inputs.
 function bindCalculation(engine, name, form, results, request, render, split = () => null) {
   const state = { last: null, pending: null, timer: 0 };
   const later = new Set(results.querySelectorAll('[data-pending-shows] output'));
@@ -165,7 +167,9 @@ function bindCalculation(engine, name, form, results, request, render, split = (
     const whole = state.pending;
     if (!whole) return;
     settle();
-    show(engine.call(name, whole));
+    if (show(engine.call(name, whole))) return;
+    for (const out of later) showNumber(out, undefined);
+    showRanges(results);
   };
   state.update = () => {
     settle();
