@@ -59,6 +59,18 @@ func TestPackedSeriesInPage(t *testing.T) {
 			t.Errorf("%s: packed series against the JSON answer: %s", c.entry, mismatch)
 		}
 	}
+	// Names of one part and of three go where their paths say, beside
+	// what the answer's member holds already (a hand-made answer: the
+	// module's names have two parts).
+	deep := eval[string](p, `(async () => {
+		const { unpack } = await import('./js/engine.js');
+		const bytes = new Uint8Array(new Float64Array([1, 2, 3, 4]).buffer);
+		const a = unpack({ ok: true, into: { top: 9 }, packed: { into: 'into', lengths: [2, 1, 1], series: ['a.b.c', 'd', 'a.b.e'] } }, bytes);
+		return JSON.stringify({ c: [...a.into.a.b.c], d: [...a.into.d], e: [...a.into.a.b.e], top: a.into.top, packed: 'packed' in a });
+	})()`)
+	if want := `{"c":[1,2],"d":[3],"e":[4],"top":9,"packed":false}`; deep != want {
+		t.Errorf("unpack of names of one and three parts: %s, want %s", deep, want)
+	}
 	for _, axis := range []string{"qb", "qd", "koa"} {
 		p.do(chromedp.Click(chromedp.CSS(`[data-axis="` + axis + `"]`)))
 		paths := eval[[]string](p, `[...document.querySelectorAll('#compare-chart path.series, #compare-chart path.ceiling')].map(e => e.getAttribute('d'))`)

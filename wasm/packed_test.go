@@ -128,53 +128,64 @@ func BenchmarkBridgeComparePacked(b *testing.B) {
 	}
 }
 
-// TestResponseBufferReused: compare writes every answer into one buffer
-// (invoke's buffer) and every packed series into one storage
+// TestResponseBufferReused: compare and size write every answer into one
+// buffer (invoke's buffer) and every packed series into one storage
 // (seriesBuffer), so each call's string and series must be its own,
-// whole, whatever came before it: a long answer (the series as JSON text) then
-// shorter ones, a failure, a packed answer and the general path, in turn,
-// twice, each against the same request answered natively.
+// whole, whatever came before it: a long answer (the series as JSON text)
+// then shorter ones, failures, packed answers of either entry (size's
+// largest, 1001 points a series, among them) and the general path, in
+// turn, twice, each against the same request answered natively.
 func TestResponseBufferReused(t *testing.T) {
 	buf := packedBuffer(t, api.MaxPackedBytes)
+	entries := map[string]api.Entry{}
+	for _, e := range api.Entries {
+		entries[e.Name] = e
+	}
 	requests := []struct {
-		request string
-		packed  bool
+		entry, request string
+		packed         bool
 	}{
-		{`{"qb":300,"qd":500,"koa":800,"sweep":{}}`, false},
-		{`{"qb":"300","qd":"500","koa":"800","cbi":"","cdi":""}`, false},
-		{`{"qb":-1,"qd":500,"koa":800}`, false},
-		{`{"qb":450,"qd":"700,5","koa":1300,"sweep":{}}`, true},
-		{`{"qb":300,"qd":500,"koa":800,"sweep":{"points":3}}`, false},
-		{`{"QB":310,"qd":500,"koa":800}`, false}, // not flat as the page writes it: the general path
-		{`{"qb":300,"qd":500,"koa":800,"sweep":{}}`, true},
+		{"compare", `{"qb":300,"qd":500,"koa":800,"sweep":{}}`, false},
+		{"compare", `{"qb":"300","qd":"500","koa":"800","cbi":"","cdi":""}`, false},
+		{"size", `{"target_clearance":250,"qb":300,"qd":500,"k0":0.05,"sweep":{"points":1001}}`, true},
+		{"compare", `{"qb":-1,"qd":500,"koa":800}`, false},
+		{"size", `{"target_clearance":250,"qb":300,"qd":500,"sweep":{}}`, false},
+		{"compare", `{"qb":450,"qd":"700,5","koa":1300,"sweep":{}}`, true},
+		{"size", `{"target_clearance":180,"qb":300,"qd":500,"flow":"cocurrent","sweep":{"points":7}}`, true},
+		{"size", `{"qb":300,"sweep":{}}`, true},
+		{"compare", `{"qb":300,"qd":500,"koa":800,"sweep":{"points":3}}`, false},
+		{"compare", `{"QB":310,"qd":500,"koa":800}`, false}, // not flat as the page writes it: the general path
+		{"size", `{"target_clearance":299.9,"qb":300,"qd":800,"k0":0.06,"sweep":{}}`, true},
+		{"compare", `{"qb":300,"qd":500,"koa":800,"sweep":{}}`, true},
 	}
 	var answers []string
 	for round := range 2 {
 		for i, r := range requests {
+			e := entries[r.entry]
 			var got string
 			var want []byte
 			if r.packed {
-				got = call(t, "compare", r.request, buf)
+				got = call(t, r.entry, r.request, buf)
 				var series []float64
-				want, series = api.ComparePacked(nil, nil, []byte(r.request))
+				want, series = e.Packed(nil, nil, []byte(r.request))
 				// the series, computed into the bridge's kept storage, as
 				// they reached the page's buffer
 				for k, x := range float64sOf(t, buf, len(series)) {
 					if math.Float64bits(x) != math.Float64bits(series[k]) {
-						t.Fatalf("round %d, compare(%s, buffer): series value %d = %v, want %v", round, r.request, k, x, series[k])
+						t.Fatalf("round %d, %s(%s, buffer): series value %d = %v, want %v", round, r.entry, r.request, k, x, series[k])
 					}
 				}
 			} else {
-				got = call(t, "compare", r.request)
-				want = api.Compare([]byte(r.request))
+				got = call(t, r.entry, r.request)
+				want = e.Call([]byte(r.request))
 			}
 			if got != string(want) {
-				t.Fatalf("round %d, compare(%s): got %.80s... (%d bytes), want %.80s... (%d bytes)", round, r.request, got, len(got), want, len(want))
+				t.Fatalf("round %d, %s(%s): got %.80s... (%d bytes), want %.80s... (%d bytes)", round, r.entry, r.request, got, len(got), want, len(want))
 			}
 			if round == 0 {
 				answers = append(answers, got)
 			} else if got != answers[i] {
-				t.Errorf("compare(%s) changed between rounds", r.request)
+				t.Errorf("%s(%s) changed between rounds", r.entry, r.request)
 			}
 		}
 	}

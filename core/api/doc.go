@@ -29,21 +29,21 @@ type Entry struct {
 	Name string
 	Call func(request []byte) []byte
 	// Append, for an entry that writes its answer directly (compare's
-	// fast path), answers like Call with the response appended to dst
-	// (as strconv's Append functions do), so that a caller done with each
-	// response before the next call keeps one buffer for all of them: the
-	// bridge does, sparing an allocation a call. Nil for the other
-	// entries.
+	// fast path, size's series), answers like Call with the response
+	// appended to dst (as strconv's Append functions do), so that a caller
+	// done with each response before the next call keeps one buffer for
+	// all of them: the bridge does, sparing an allocation a call. Nil for
+	// the other entries.
 	Append func(dst, request []byte) []byte
 	// Packed, for an entry whose answer can carry chart series, answers
 	// like Append but leaves the series out of the JSON: it returns them as
 	// float64 values end to end, and the response's "packed" member names
 	// them in that order (see Packing). The bridge uses it when the page
 	// passes a buffer for them, which spares writing and parsing some 1500
-	// numbers as text on every input. The series are computed into storage
-	// when it has room for them, so that the bridge, which copies them to
-	// the page before the next call, keeps that too. Nil for the other
-	// entries.
+	// (compare) or 600 (size) numbers as text on every input. The series
+	// are computed into storage when it has room for them, so that the
+	// bridge, which copies them to the page before the next call, keeps
+	// that too. Nil for the other entries.
 	Packed func(dst []byte, storage []float64, request []byte) (response []byte, series []float64)
 }
 

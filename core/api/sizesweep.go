@@ -50,21 +50,27 @@ func respondSize(dst []byte, storage []float64, r *SizeResponse, packed, fast bo
 	return append(out, '}'), series
 }
 
-// sizeSeriesNames are the names of the packed series of a size answer, in
-// the order packSizeSweep lays them: the areas only when the answer has
-// them (the one or the other line).
-var sizeSeriesNames = [2][]string{
-	{"countercurrent.target", "countercurrent.koa", "cocurrent.target", "cocurrent.koa"},
-	{"countercurrent.target", "countercurrent.koa", "countercurrent.area_m2", "cocurrent.target", "cocurrent.koa", "cocurrent.area_m2"},
+// sizeSeriesNames are the names of a size answer's packed series, by
+// arrangement (countercurrent, cocurrent) and member (target, koa,
+// area_m2).
+var sizeSeriesNames = [2][3]string{
+	{"countercurrent.target", "countercurrent.koa", "countercurrent.area_m2"},
+	{"cocurrent.target", "cocurrent.koa", "cocurrent.area_m2"},
 }
 
-// sizeSeriesOf lists s's series in the order of sizeSeriesNames.
-func sizeSeriesOf(s *core.SizeSweep) ([]string, [][]float64) {
-	c, o := &s.Countercurrent, &s.Cocurrent
-	if len(c.AreaM2) == 0 {
-		return sizeSeriesNames[0], [][]float64{c.Target, c.KoA, o.Target, o.KoA}
+// sizeSeriesOf lists s's series and their names in the order packSizeSweep
+// lays them: each arrangement's target and koa, and its area_m2 where it
+// has one (the JSON leaves an empty one out), so that the packing names
+// exactly the series the JSON would hold (TestSizeSweepWriter).
+func sizeSeriesOf(s *core.SizeSweep) (names []string, series [][]float64) {
+	for k, one := range [2]*core.SizeSeries{&s.Countercurrent, &s.Cocurrent} {
+		for m, xs := range [3][]float64{one.Target, one.KoA, one.AreaM2} {
+			if m < 2 || len(xs) > 0 {
+				names, series = append(names, sizeSeriesNames[k][m]), append(series, xs)
+			}
+		}
 	}
-	return sizeSeriesNames[1], [][]float64{c.Target, c.KoA, c.AreaM2, o.Target, o.KoA, o.AreaM2}
+	return names, series
 }
 
 // packSizeSweep appends s's series end to end to storage.

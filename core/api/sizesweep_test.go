@@ -6,6 +6,7 @@ import (
 	"math/rand/v2"
 	"reflect"
 	"slices"
+	"strings"
 	"testing"
 
 	"github.com/goccy/go-json"
@@ -51,6 +52,7 @@ func TestSizeSweepWriter(t *testing.T) {
 		if got, ok := appendSizeSweep(nil, s, true); !ok || !bytes.Equal(got, want) {
 			t.Fatalf("appendSizeSweep, packed = %s, %v,\nwant %s (goccy/go-json)", got, ok, want)
 		}
+		checkSizePacking(t, s)
 	}
 	for i := range 300 {
 		var s core.SizeSweep
@@ -86,6 +88,63 @@ func TestSizeSweepWriter(t *testing.T) {
 				t.Errorf("appendSizeSweep with %v at place %d: accepted, want declined", x, place)
 			}
 		}
+	}
+}
+
+// checkSizePacking: the packing of s (appendSizePacking, packSizeSweep)
+// names every series s's JSON holds and no other, in the order the
+// series are laid, each with its length and its values. A null series
+// (nil) packs as an empty one.
+func checkSizePacking(t *testing.T, s *core.SizeSweep) {
+	t.Helper()
+	whole, err := json.Marshal(s)
+	if err != nil {
+		t.Fatal(err)
+	}
+	var two struct {
+		Countercurrent map[string]any `json:"countercurrent"`
+		Cocurrent      map[string]any `json:"cocurrent"`
+	}
+	if err := json.Unmarshal(whole, &two); err != nil {
+		t.Fatal(err)
+	}
+	sweep := map[string]map[string]any{"countercurrent": two.Countercurrent, "cocurrent": two.Cocurrent}
+	var answer struct{ Packed Packing }
+	if err := json.Unmarshal(append(appendSizePacking([]byte(`{"x":0`), s), '}'), &answer); err != nil {
+		t.Fatal(err)
+	}
+	p := answer.Packed
+	values := packSizeSweep(nil, s)
+	if p.Into != "sweep" || len(p.Lengths) != len(p.Series) {
+		t.Fatalf("packing %+v: want into sweep, a length per series", p)
+	}
+	var want []string
+	for _, arr := range []string{"countercurrent", "cocurrent"} {
+		for _, m := range []string{"target", "koa", "area_m2"} {
+			if _, ok := sweep[arr][m]; ok {
+				want = append(want, arr+"."+m)
+			}
+		}
+	}
+	if !slices.Equal(p.Series, want) {
+		t.Fatalf("packing names %q, the JSON holds %q\n%s", p.Series, want, whole)
+	}
+	at := 0
+	for k, name := range p.Series {
+		arr, m, _ := strings.Cut(name, ".")
+		list, _ := sweep[arr][m].([]any)
+		if p.Lengths[k] != len(list) || at+len(list) > len(values) {
+			t.Fatalf("%s: packed length %d, the JSON's %d (%d values in all)", name, p.Lengths[k], len(list), len(values))
+		}
+		for i, v := range list {
+			if values[at+i] != v.(float64) {
+				t.Fatalf("%s[%d]: packed %v, the JSON's %v", name, i, values[at+i], v)
+			}
+		}
+		at += len(list)
+	}
+	if at != len(values) {
+		t.Fatalf("%d values packed, the series hold %d", len(values), at)
 	}
 }
 
@@ -128,6 +187,15 @@ func TestSizeBothWays(t *testing.T) {
 		}
 		if bytes.Contains(general, []byte(`"sweep":{"koa_max"`)) {
 			withSeries++
+		}
+		// Packed, into storage as the bridge keeps it (holding an earlier
+		// answer's values, here NaN) and after what dst holds, as into none.
+		dst := []byte("kept")
+		storage := slices.Repeat([]float64{math.NaN()}, 6*core.MaxSweepPoints)
+		kept, keptSeries := size(dst, storage, []byte(request), true, true)
+		fresh, freshSeries := size(nil, nil, []byte(request), true, true)
+		if !bytes.Equal(kept, append(dst, fresh...)) || !slices.Equal(keptSeries, freshSeries) || len(keptSeries) > 0 && &keptSeries[0] != &storage[0] {
+			t.Errorf("size(%s), packed into kept storage: %s, %d values; into none: %s, %d values", request, clip(string(kept)), len(keptSeries), clip(string(fresh)), len(freshSeries))
 		}
 	}
 	if withSeries < 20 {

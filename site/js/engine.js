@@ -61,15 +61,18 @@ export function unpack(answer, bytes) {
   const target = (answer[into] ??= {});
   for (let k = 0, at = 0; k < series.length; k++) {
     const n = lengths ? lengths[k] : points;
-    const [outer, member] = seriesPath(series[k]);
-    (target[outer] ??= {})[member] = values.subarray(at, at + n);
+    const path = seriesPath(series[k]);
+    let obj = target;
+    for (let i = 0; i < path.length - 1; i++) obj = (obj[path[i]] ??= {});
+    obj[path[path.length - 1]] = values.subarray(at, at + n);
     at += n;
   }
   delete answer.packed;
   return answer;
 }
 
-// seriesPath splits a packed series name, "qb.x", into ["qb", "x"], once
+// seriesPath splits a packed series name, "qb.x", into ["qb", "x"] (a
+// name of more parts goes as deep), once
 // per name: the names are the same in every answer, and the split is a
 // third of unpack's time (./build.sh bench).
 const seriesPaths = new Map();
