@@ -80,6 +80,16 @@ func TestChartRedraw(t *testing.T) {
 		for (const [name, spec] of Object.entries(typedSpecs)) {
 			if (fresh(spec) !== fresh(specs[name])) failures.push(name + ' from Float64Arrays differs from it drawn from Arrays');
 		}
+		// Lines changed in place (the same arrays, other numbers) are drawn
+		// anew, as are lines of the same numbers on another scale.
+		const inPlace = lines(compare(250), 'qd', typed);
+		drawChart(svg, inPlace);
+		for (const line of [inPlace.series[0].values, inPlace.ceilings[1].values]) line.forEach((v, i) => { line[i] = v * 0.9; });
+		drawChart(svg, inPlace);
+		if (shape(svg) !== fresh(inPlace)) failures.push('lines changed in place and drawn again differ from them drawn afresh');
+		const rescaled = { ...inPlace, yMax: 900 };
+		drawChart(svg, rescaled);
+		if (shape(svg) !== fresh(rescaled)) failures.push('the same lines on another scale differ from them drawn afresh');
 		// The page's own chart: redrawn with an equal spec, nothing changes.
 		document.body.append(svg);
 		drawChart(svg, specs['qb 340']);

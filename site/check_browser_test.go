@@ -439,7 +439,7 @@ func TestCheckViewIntervalLater(t *testing.T) {
 	p := openChecks(t)
 	at := func(m map[string]any, path string) any { v, _ := valueAt(m, path); return v }
 	type shown struct {
-		Pending, Busy, Clearance, RangeBefore, Range, Opacity, Snapshot string
+		Pending, Busy, Clearance, RangeBefore, Range, ColorBefore, Color, Snapshot string
 	}
 	typeAndLook := func(snapshot bool) shown {
 		return eval[shown](p, fmt.Sprintf(`import('./js/views.js').then((m) => {
@@ -447,6 +447,7 @@ func TestCheckViewIntervalLater(t *testing.T) {
 			const results = document.getElementById('check-results');
 			const range = results.querySelector('[data-out="uncertainty.koa_countercurrent.low"]');
 			const before = range.textContent;
+			const colorBefore = getComputedStyle(range).color;
 			input.value = '20';
 			input.dispatchEvent(new Event('input', { bubbles: true }));
 			const look = {
@@ -455,7 +456,8 @@ func TestCheckViewIntervalLater(t *testing.T) {
 				Clearance: results.querySelector('[data-out="clearance"]').dataset.value,
 				RangeBefore: before,
 				Range: range.textContent,
-				Opacity: getComputedStyle(range.closest('[data-pending-shows]')).opacity,
+				ColorBefore: colorBefore,
+				Color: getComputedStyle(range).color,
 				Snapshot: '',
 			};
 			if (%t) look.Snapshot = JSON.stringify(m.views.get('check').snapshot().result.clearance.uncertainty);
@@ -476,10 +478,10 @@ func TestCheckViewIntervalLater(t *testing.T) {
 		t.Fatalf("native: uncertainty %v without the fields, %v with them", first["uncertainty"], whole["uncertainty"])
 	}
 	got := typeAndLook(false)
-	if got.Pending != "true" || got.Busy != "true" || got.Range != got.RangeBefore || got.Range == "" || got.Opacity == "1" ||
+	if got.Pending != "true" || got.Busy != "true" || got.Range != got.RangeBefore || got.Range == "" || got.Color == got.ColorBefore ||
 		got.Clearance != strconv.FormatFloat(first["clearance"].(float64), 'g', -1, 64) {
-		t.Errorf("right after the input: pending %q, busy %q, KoA range %q (before %q) at opacity %s, clearance %s; want true, true, the range before, greyed, %v",
-			got.Pending, got.Busy, got.Range, got.RangeBefore, got.Opacity, got.Clearance, first["clearance"])
+		t.Errorf("right after the input: pending %q, busy %q, KoA range %q (before %q) in %s (before %s), clearance %s; want true, true, the range before, greyed, %v",
+			got.Pending, got.Busy, got.Range, got.RangeBefore, got.Color, got.ColorBefore, got.Clearance, first["clearance"])
 	}
 	p.settle()
 	wantShown(t, p, "#check-results", whole)

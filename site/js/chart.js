@@ -115,6 +115,29 @@ function drawFrame(layers, f) {
   setText(yTitle, f.yLabel);
 }
 
+// What each line's d was drawn from: its values, its x and the axes'
+// scale. A line whose numbers and scale are those it was drawn from keeps
+// its d without the string being built again (a new QB on the QB chart
+// moves only the marker, and a line is 101 points).
+const lineSources = new WeakMap();
+
+function sameNumbers(a, b) {
+  if (a.length !== b.length) return false;
+  for (let i = 0; i < a.length; i++) if (!Object.is(a[i], b[i])) return false;
+  return true;
+}
+
+// drawLine sets node's d to path(values, x) unless it was drawn from the
+// same numbers on the same scale.
+function drawLine(node, values, x, scale, path) {
+  const was = lineSources.get(node);
+  if (was && was.xMin === scale.xMin && was.xMax === scale.xMax && was.yMax === scale.yMax && was.plotW === scale.plotW &&
+      sameNumbers(was.values, values) && sameNumbers(was.x, x)) return;
+  set(node, { d: path(values, x) });
+  // Copies: a caller may change its arrays in place and draw again.
+  lineSources.set(node, { ...scale, values: Array.from(values), x: Array.from(x) });
+}
+
 // drawChart draws spec into svg. spec: {x, xLabel, yLabel, series:
 // [{values, className, label}], ceilings: [{values, label}], point: {x,
 // ys: []}}, where x and values are array-likes of numbers. Optional: a
@@ -138,6 +161,7 @@ export function drawChart(svg, spec) {
 
   drawFrame(layers, { left, top, plotW, plotH, px, py, yTicks, xTicks: ticks(xMin, xMax), xLabel: spec.xLabel, yLabel: spec.yLabel });
 
+  const scale = { xMin, xMax, yMax, plotW };
   const path = (values, x) => {
     let d = '';
     for (let i = 0; i < values.length; i++) d += `${i ? 'L' : 'M'}${tenths(px(x[i]))} ${tenths(py(Math.min(values[i], yMax)))}`;
@@ -146,7 +170,8 @@ export function drawChart(svg, spec) {
   const labels = [];
   const ceilingPaths = children(layers.ceilings, ceilings.length, 'path');
   ceilings.forEach((c, i) => {
-    set(ceilingPaths[i], { class: 'ceiling', d: path(c.values, xs) });
+    set(ceilingPaths[i], { class: 'ceiling' });
+    drawLine(ceilingPaths[i], c.values, xs, scale, path);
     labels.push({ y: py(c.values[c.values.length - 1]), text: c.label });
   });
 
@@ -162,7 +187,8 @@ export function drawChart(svg, spec) {
 
   const seriesPaths = children(layers.series, spec.series.length, 'path');
   spec.series.forEach((s, i) => {
-    set(seriesPaths[i], { class: `series ${s.className}`, d: path(s.values, s.x ?? xs), 'data-series': s.label });
+    set(seriesPaths[i], { class: `series ${s.className}`, 'data-series': s.label });
+    drawLine(seriesPaths[i], s.values, s.x ?? xs, scale, path);
     labels.push({ y: py(s.values[s.values.length - 1]), text: s.label });
   });
 
