@@ -8,6 +8,8 @@
 // fewer ticks, say). A series is any array-like of numbers (an Array or a
 // Float64Array: only indexing and length are used).
 
+import { setText } from './dom.js';
+
 const NS = 'http://www.w3.org/2000/svg';
 const BOX = { width: 640, height: 270, left: 58, right: 96, top: 14, bottom: 46 };
 
@@ -22,10 +24,6 @@ function set(node, attrs) {
     const text = typeof v === 'number' ? tenths(v) : v;
     if (node.getAttribute(k) !== text) node.setAttribute(k, text);
   }
-}
-
-function setText(node, text) {
-  if (node.textContent !== text) node.textContent = text;
 }
 
 // children returns group's first count children, all of element name,
