@@ -142,10 +142,10 @@ func unreachable(a Arrangement, qb, qd, target float64) *FieldError {
 		ways = append(ways, fmt.Sprintf("counter-current flow (ceiling %s mL/min)", num(cc)))
 	}
 	if q, ok := ceilingFlow(a, qb, target); ok {
-		ways = append(ways, fmt.Sprintf("QD above %s mL/min", num(q)))
+		ways = append(ways, fmt.Sprintf("QD above %s mL/min", flowAbove(q)))
 	}
 	if q, ok := ceilingFlow(a, qd, target); ok {
-		ways = append(ways, fmt.Sprintf("QB above %s mL/min", num(q)))
+		ways = append(ways, fmt.Sprintf("QB above %s mL/min", flowAbove(q)))
 	}
 	if len(ways) == 0 {
 		// Neither flow alone will do. At equal flows q the ceiling is q
@@ -154,7 +154,7 @@ func unreachable(a Arrangement, qb, qd, target float64) *FieldError {
 		if a == Cocurrent {
 			q = 2 * target
 		}
-		ways = append(ways, fmt.Sprintf("both QB and QD above %s mL/min", num(q)))
+		ways = append(ways, fmt.Sprintf("both QB and QD above %s mL/min", flowAbove(q)))
 	}
 	msg := fmt.Sprintf("must be below the %s ceiling of %s mL/min at QB %s and QD %s mL/min, which no filter reaches; it becomes reachable with %s",
 		a.label(), num(ceiling), num(qb), num(qd), strings.Join(ways, ", or with "))
@@ -179,6 +179,13 @@ func ceilingFlow(a Arrangement, other, target float64) (float64, bool) {
 
 // num formats a number for a message: six significant digits.
 func num(x float64) string { return strconv.FormatFloat(x, 'g', 6, 64) }
+
+// flowAbove formats the flow x of "QD above x" in a message: rounded up to
+// a tenth of a mL/min, so that any flow set above the number shown is above
+// x, and always with its one decimal, as the page shows flows (the number
+// then keeps its width while the target changes, and the page lays out
+// its sentence again only where the digits are).
+func flowAbove(x float64) string { return strconv.FormatFloat(math.Ceil(x*10)/10, 'f', 1, 64) }
 
 // K0FromReference returns the mass transfer coefficient K0 (cm/min) of a
 // membrane from a reference filter of the same family: its rated KoA

@@ -115,7 +115,7 @@ func (m sizeModel) unreachable(a Arrangement, qb, qd, target float64) *FieldErro
 			x = qbw * (target - qf) / (qbw - target)
 		}
 		if x = math.Max(x, 0); x < MaxFlow {
-			ways = append(ways, fmt.Sprintf("QD above %s mL/min", num(x)))
+			ways = append(ways, fmt.Sprintf("QD above %s mL/min", flowAbove(x)))
 		}
 	}
 	if qd+qf > target {
@@ -124,7 +124,7 @@ func (m sizeModel) unreachable(a Arrangement, qb, qd, target float64) *FieldErro
 			y = target * qd / (qd + qf - target)
 		}
 		if y /= m.water; y < MaxFlow {
-			ways = append(ways, fmt.Sprintf("QB above %s mL/min", num(y)))
+			ways = append(ways, fmt.Sprintf("QB above %s mL/min", flowAbove(y)))
 		}
 	}
 	if len(ways) == 0 {

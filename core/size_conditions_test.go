@@ -143,8 +143,8 @@ func TestSizeConditionsRefusals(t *testing.T) {
 	_, err := core.Size(s)
 	fe, ok := err.(*core.FieldError)
 	// QBW must pass 270: a blood flow of 270/0.8628 = 312.935 mL/min.
-	if !ok || fe.Field != "target_clearance" || fe.Limit == nil || !close(*fe.Limit, 258.84) || !strings.Contains(fe.Message, "QB above 312.935") {
-		t.Fatalf("Size(target 270) error = %v, want target_clearance, limit 258.84, and QB above 312.935", err)
+	if !ok || fe.Field != "target_clearance" || fe.Limit == nil || !close(*fe.Limit, 258.84) || !strings.Contains(fe.Message, "QB above 313.0 mL/min") {
+		t.Fatalf("Size(target 270) error = %v, want target_clearance, limit 258.84, and QB above 313.0 mL/min (312.935 rounded up to a tenth)", err)
 	}
 	s.Target = 15
 	if _, err := core.Size(s); fieldOf(err) != "target_clearance" || !strings.Contains(err.Error(), "ultrafiltration alone") {

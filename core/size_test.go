@@ -270,20 +270,25 @@ func refusal(t *testing.T, call string, err error, limit float64, words ...strin
 // QB QD/(QB + QD)): co-current at QB 300 passes 250 for QD above
 // 250 x 300/50 = 1500, at QD 500 for QB above 250 x 500/250 = 500; at
 // QB = QD = 200 it passes 150 for the other flow above 150 x 200/50 = 600.
+// A flow is given to a tenth, rounded up (a flow set above the number shown
+// is then above the threshold): at QB 300, QD 500, 230 needs QD above
+// 230 x 300/70 = 985.714... (985.8) or QB above 230 x 500/270 = 425.926...
+// (426.0).
 var ceilingRefusals = []struct {
 	a              core.Arrangement
 	qb, qd, target float64
 	ceiling        float64
 	words          []string
 }{
-	{core.Cocurrent, 300, 500, 250, 187.5, []string{"co-current ceiling of 187.5 mL/min", "counter-current flow (ceiling 300 mL/min)", "QD above 1500 mL/min", "QB above 500 mL/min"}},
+	{core.Cocurrent, 300, 500, 250, 187.5, []string{"co-current ceiling of 187.5 mL/min", "counter-current flow (ceiling 300 mL/min)", "QD above 1500.0 mL/min", "QB above 500.0 mL/min"}},
+	{core.Cocurrent, 300, 500, 230, 187.5, []string{"QD above 985.8 mL/min", "QB above 426.0 mL/min"}},
 	{core.Cocurrent, 300, 500, 187.5, 187.5, []string{"ceiling of 187.5"}}, // at the ceiling itself
-	{core.Countercurrent, 300, 500, 300, 300, []string{"counter-current ceiling of 300 mL/min", "QB above 300 mL/min"}},
-	{core.Countercurrent, 300, 500, 320, 300, []string{"QB above 320 mL/min"}},
-	{core.Countercurrent, 500, 300, 320, 300, []string{"QD above 320 mL/min"}},
-	{core.Countercurrent, 200, 200, 250, 200, []string{"both QB and QD above 250 mL/min"}},
-	{core.Cocurrent, 200, 200, 150, 100, []string{"counter-current flow (ceiling 200 mL/min)", "QD above 600 mL/min", "QB above 600 mL/min"}},
-	{core.Cocurrent, 200, 200, 250, 100, []string{"both QB and QD above 500 mL/min"}},
+	{core.Countercurrent, 300, 500, 300, 300, []string{"counter-current ceiling of 300 mL/min", "QB above 300.0 mL/min"}},
+	{core.Countercurrent, 300, 500, 320, 300, []string{"QB above 320.0 mL/min"}},
+	{core.Countercurrent, 500, 300, 320, 300, []string{"QD above 320.0 mL/min"}},
+	{core.Countercurrent, 200, 200, 250, 200, []string{"both QB and QD above 250.0 mL/min"}},
+	{core.Cocurrent, 200, 200, 150, 100, []string{"counter-current flow (ceiling 200 mL/min)", "QD above 600.0 mL/min", "QB above 600.0 mL/min"}},
+	{core.Cocurrent, 200, 200, 250, 100, []string{"both QB and QD above 500.0 mL/min"}},
 	{core.Countercurrent, 300, 500, 1e9, 300, []string{"ceiling of 300"}},
 }
 
@@ -966,7 +971,7 @@ func ExampleRequiredKoA() {
 	fmt.Println(err)
 	// Output:
 	// KoA 824.0 mL/min, 1.648 m² at K0 0.05 cm/min
-	// target_clearance: must be below the co-current ceiling of 187.5 mL/min at QB 300 and QD 500 mL/min, which no filter reaches; it becomes reachable with counter-current flow (ceiling 300 mL/min), or with QD above 1500 mL/min, or with QB above 500 mL/min
+	// target_clearance: must be below the co-current ceiling of 187.5 mL/min at QB 300 and QD 500 mL/min, which no filter reaches; it becomes reachable with counter-current flow (ceiling 300 mL/min), or with QD above 1500.0 mL/min, or with QB above 500.0 mL/min
 }
 
 // The filter in use (KoA 700 mL/min) at QB 300: the smallest QD that

@@ -1,6 +1,7 @@
 package site
 
 import (
+	"context"
 	"encoding/json"
 	"fmt"
 	"strconv"
@@ -8,6 +9,7 @@ import (
 	"testing"
 	"time"
 
+	cdppage "github.com/chromedp/cdproto/page"
 	"github.com/chromedp/chromedp"
 
 	"clearkit/core/api"
@@ -588,5 +590,52 @@ func TestCheckViewInputChangesOnlyWhatDiffers(t *testing.T) {
 	}
 	if same["records"].(float64) != 0 {
 		t.Errorf("CBo %v, the same as before: %v changes in the results, want none", same["cbo"], same["records"])
+	}
+}
+
+// TestCheckViewStartRanges: at start-up the check view shows the demo's
+// clearance test at once with its 95 % ranges still to come (the whole
+// request waits LATER_MS); a range with no value yet shows no bare " to ",
+// and once the whole answer is in, every range with a low end shows both
+// its ends (the demo's has one without: a word in its place).
+// The page's 250 ms timers are held here until the test lets them run.
+// Reference: the page's elements.
+func TestCheckViewStartRanges(t *testing.T) {
+	p := openPage(t, "")
+	ctx, cancel := context.WithTimeout(p.ctx, 5*time.Second)
+	_, err := chromedp.Call(ctx, cdppage.AddScriptToEvaluateOnNewDocument, cdppage.AddScriptToEvaluateOnNewDocumentParams{Source: `
+		window.heldTimers = [];
+		const later = window.setTimeout;
+		window.setTimeout = function (f, ms, ...args) {
+			if (ms !== 250) return later.call(this, f, ms, ...args);
+			window.heldTimers.push(() => f(...args));
+			return 0;
+		};`})
+	cancel()
+	if err != nil {
+		t.Fatal(err)
+	}
+	p.reload()
+	type look struct {
+		Held, Pending    bool
+		Ranges, ToShown  int
+		Values, Unvalued int
+	}
+	read := `(() => {
+		const ranges = [...document.querySelectorAll('#check-results .range')];
+		const lows = ranges.map((r) => r.querySelector('output'));
+		return {
+			Held: window.heldTimers.length > 0, Pending: document.getElementById('check-results').dataset.pending === 'true',
+			Ranges: ranges.length, ToShown: ranges.filter((r) => !r.querySelector('.range-to').hidden).length,
+			Values: lows.filter((o) => (o.dataset.value ?? '') !== '').length, Unvalued: lows.filter((o) => !o.hasAttribute('data-value')).length,
+		};
+	})()`
+	before := eval[look](p, read)
+	if !before.Held || !before.Pending || before.Ranges < 3 || before.Values != 0 || before.ToShown != 0 {
+		t.Errorf("at start-up, the whole request held: %+v, want the ranges pending, none with a value and no ' to ' shown", before)
+	}
+	after := eval[look](p, `(window.heldTimers.splice(0).forEach((f) => f()), `+read+`)`)
+	if after.Pending || after.Values < 2 || after.ToShown != after.Values {
+		t.Errorf("after the whole request: %+v, want the ranges with a low end (2 or more) showing ' to '", after)
 	}
 }

@@ -109,7 +109,7 @@ func TestSizeUnreachable(t *testing.T) {
 	}{
 		// Ceilings by hand: co-current 300 x 500/800 = 187.5, counter-current min(300, 500).
 		{`{"target_clearance":250,"qb":300,"qd":500,"flow":"cocurrent","k0":0.05}`, 187.5, "counter-current flow (ceiling 300 mL/min)"},
-		{`{"target_clearance":300,"qb":300,"qd":500}`, 300, "QB above 300 mL/min"},
+		{`{"target_clearance":300,"qb":300,"qd":500}`, 300, "QB above 300.0 mL/min"},
 		{`{"target_clearance":1e6,"qb":300,"qd":500}`, 300, "ceiling of 300"},
 	} {
 		e := sizeError(t, c.request, "target_clearance")

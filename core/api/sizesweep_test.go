@@ -176,7 +176,10 @@ func sizeRequests() []string {
 func SizeRequestsForTest() []string { return sizeRequests() }
 
 // TestSizeBothWays: every request of sizeRequests gets the same bytes with
-// the series written by appendSizeSweep as from the general encoder.
+// the series written by appendSizeSweep as from the general encoder; and
+// packed, appended after what dst holds into storage that holds an earlier
+// answer's values, it gets the same JSON and series as packed into none,
+// with the series in that storage.
 func TestSizeBothWays(t *testing.T) {
 	withSeries := 0
 	for _, request := range sizeRequests() {

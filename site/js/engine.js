@@ -72,9 +72,9 @@ export function unpack(answer, bytes) {
 }
 
 // seriesPath splits a packed series name, "qb.x", into ["qb", "x"] (a
-// name of more parts goes as deep), once
-// per name: the names are the same in every answer, and the split is a
-// third of unpack's time (./build.sh bench).
+// name of more parts goes as deep), once per name: the names are the same
+// in every answer, and the split is a third of unpack's time (./build.sh
+// bench).
 const seriesPaths = new Map();
 function seriesPath(name) {
   let path = seriesPaths.get(name);

@@ -2,7 +2,7 @@
 // shows the value at that path of a response, rounded for reading, and
 // keeps the full value in data-value.
 
-import { setText } from './dom.js';
+import { setText, setData } from './dom.js';
 
 export function formatNumber(value, digits = 1, { percent = false, signed = false } = {}) {
   if (typeof value !== 'number' || !Number.isFinite(value)) return '–';
@@ -57,4 +57,55 @@ export function showNumber(out, value, digits, options) {
   const chars = String(text.length);
   if (out.getAttribute('data-chars') !== chars) out.setAttribute('data-chars', chars);
   setText(out, text);
+}
+
+// showSentence puts text in node with each of its numbers (a run of
+// digits with an optional decimal part) in a box of its own, <span
+// class="num" data-chars="n">, as showNumber's outputs have: a sentence
+// whose numbers follow the input (an out-of-reach message, say) then
+// changes only inside its boxes from one keystroke to the next, and the
+// browser lays out the boxes alone. When node shows the same words between
+// the same count of numbers, only the numbers are written; otherwise its
+// children are made again. An empty text leaves node empty.
+export function showSentence(node, text) {
+  const parts = text.split(NUMBER); // words, number, words, ..., words
+  if (!sameWords(node, parts)) {
+    const children = [];
+    parts.forEach((part, i) => {
+      if (i % 2 === 0) {
+        if (part !== '') children.push(document.createTextNode(part));
+        return;
+      }
+      const box = document.createElement('span');
+      box.className = 'num';
+      box.dataset.chars = String(part.length);
+      box.textContent = part;
+      children.push(box);
+    });
+    node.replaceChildren(...children);
+    return;
+  }
+  let box = node.firstElementChild;
+  for (let i = 1; i < parts.length; i += 2) {
+    setData(box, 'chars', String(parts[i].length));
+    setText(box, parts[i]);
+    box = box.nextElementSibling;
+  }
+}
+
+const NUMBER = /([0-9]+(?:\.[0-9]+)?)/;
+
+// sameWords tells whether node's children are parts' words (text nodes,
+// empty ones left out) and a number box in the place of each number.
+function sameWords(node, parts) {
+  let child = node.firstChild;
+  for (let i = 0; i < parts.length; i++) {
+    if (i % 2 === 0 && parts[i] === '') continue;
+    if (child === null) return false;
+    if (i % 2 === 0 ? child.nodeType !== Node.TEXT_NODE || child.data !== parts[i] : child.nodeName !== 'SPAN' || child.className !== 'num') {
+      return false;
+    }
+    child = child.nextSibling;
+  }
+  return child === null;
 }

@@ -3,7 +3,7 @@
 // hand, the flows the filter in use needs and the chart series.
 
 import { readForm, fillForm, showError } from './form.js';
-import { renderOutputs, formatNumber, showNumber } from './format.js';
+import { renderOutputs, formatNumber, showNumber, showSentence } from './format.js';
 import { setText, setHidden, setData } from './dom.js';
 import { drawChart } from './chart.js';
 
@@ -140,7 +140,7 @@ export function mountSize(root, engine) {
     for (const name of ['countercurrent', 'cocurrent']) {
       const card = root.querySelector(`.card[data-arrangement="${name}"]`);
       setData(card, 'reachable', String(r[name].reachable));
-      setText(card.querySelector('[data-message-for]'), r[name].reachable ? '' : `Out of reach: the target ${r[name].message}.`);
+      showSentence(card.querySelector('[data-message-for]'), r[name].reachable ? '' : `Out of reach: the target ${r[name].message}.`);
       setHidden(card.querySelector('[data-used]'), r.flow !== name);
     }
   }
