@@ -18,7 +18,7 @@ func TestNumberBoxesFit(t *testing.T) {
 	p := openPage(t, "")
 	for _, size := range [][2]int64{{1024, 768}, {768, 1024}} {
 		p.do(chromedp.EmulateViewport(size[0], size[1]))
-		for _, view := range []string{"compare", "size"} {
+		for _, view := range []string{"compare", "size", "check"} {
 			p.showView(view)
 			type box struct {
 				Out, Text    string

@@ -5,7 +5,7 @@
 // verdict comes from the API; this module only shows them.
 
 import { readForm, fillForm, showError } from './form.js';
-import { renderOutputs, showNumber } from './format.js';
+import { renderOutputs, showNumber, showSentence } from './format.js';
 import { setText, setHidden, setData } from './dom.js';
 
 // The sieving and whole-blood fields of the clearance test left blank: S 1,
@@ -70,7 +70,8 @@ function showVerdict(banner, level, code) {
 
 // showFindings lists the findings, one item each: an item already there is
 // kept and only what differs in it is written (a keystroke mostly changes
-// a number in a sentence), items are added or removed at the end.
+// a number in a sentence: showSentence keeps the numbers in boxes and
+// writes only them), items are added or removed at the end.
 function showFindings(list, findings) {
   const items = list.children;
   while (items.length > findings.length) items[items.length - 1].remove();
@@ -83,15 +84,16 @@ function showFindings(list, findings) {
       symbol.setAttribute('aria-hidden', 'true');
       const word = document.createElement('strong');
       word.className = 'finding-word';
-      li.append(symbol, ' ', word, ' ', '');
+      const text = document.createElement('span');
+      text.className = 'finding-text';
+      li.append(symbol, ' ', word, ' ', text);
       list.append(li);
     }
     setData(li, 'level', f.level);
     setData(li, 'code', f.code);
     setText(li.querySelector('.finding-symbol'), LEVELS[f.level].symbol);
     setText(li.querySelector('.finding-word'), `${LEVELS[f.level].word}:`);
-    const text = li.lastChild;
-    if (text.data !== f.text) text.data = f.text;
+    showSentence(li.querySelector('.finding-text'), f.text);
   });
 }
 

@@ -60,7 +60,7 @@ export function showNumber(out, value, digits, options) {
 }
 
 // showSentence puts text in node with each of its numbers (a run of
-// digits with an optional decimal part) in a box of its own, <span
+// digits with an optional sign and decimal part) in a box of its own, <span
 // class="num" data-chars="n">, as showNumber's outputs have: a sentence
 // whose numbers follow the input (an out-of-reach message, say) then
 // changes only inside its boxes from one keystroke to the next, and the
@@ -93,7 +93,7 @@ export function showSentence(node, text) {
   }
 }
 
-const NUMBER = /([0-9]+(?:\.[0-9]+)?)/;
+const NUMBER = /([+-]?[0-9]+(?:\.[0-9]+)?)/; // with its sign: a box apart would split "+3.6"
 
 // sameWords tells whether node's children are parts' words (text nodes,
 // empty ones left out) and a number box in the place of each number.
