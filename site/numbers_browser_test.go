@@ -62,7 +62,7 @@ func TestNumberBoxesFit(t *testing.T) {
 }
 
 // TestShowSentence: format.js showSentence puts each number of a sentence
-// in a box (span.num with data-chars, its length) and keeps the words as
+// (with its sign) in a box (span.num with data-chars, its length) and keeps the words as
 // text; the same words with other numbers change only the boxes' text (the
 // same nodes stay); other words build the sentence again; an empty text
 // leaves the element empty (so that :empty hides it). The sentence's text
@@ -86,6 +86,8 @@ func TestShowSentence(t *testing.T) {
 		out.push(look(p.querySelector('span.num') === first));
 		showSentence(p, '12 of 300');
 		out.push(look(false));
+		showSentence(p, 'error +4.0 %, gap (-2.4 %)');
+		out.push(look(false));
 		showSentence(p, '');
 		out.push(look(false));
 		return out;
@@ -95,6 +97,7 @@ func TestShowSentence(t *testing.T) {
 		{Text: "QD above 1004.4 mL/min, or QB above 429.4 mL/min.", Boxes: "1004.4:6 429.4:5", Kept: true},
 		{Text: "both QB and QD above 500.0 mL/min", Boxes: "500.0:5"},
 		{Text: "12 of 300", Boxes: "12:2 300:3"},
+		{Text: "error +4.0 %, gap (-2.4 %)", Boxes: "+4.0:4 -2.4:4"},
 		{Empty: true},
 	}
 	if len(got) != len(want) {

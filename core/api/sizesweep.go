@@ -15,9 +15,9 @@ import (
 // series (some 600 numbers: most of the answer's bytes, and under
 // WebAssembly most of its time through the general encoder, which writes
 // a float in about twice the time of appendJSONFloat) are written by
-// appendSizeSweep, and the rest of the answer by the general encoder; the
-// bytes are the general encoder's (TestSizeSweepWriter,
-// FuzzSizeSweepWriter). "sweep" is the answer's last member, so the
+// appendSizeSweep, and the rest of the answer by appendSizeAnswer (or by
+// the general encoder, where that declines); the bytes are the general
+// encoder's (TestSizeBothWays, FuzzSizeSweepWriter). "sweep" is the answer's last member, so the
 // answer without it, less its closing brace, is followed by the sweep and
 // the brace. With packed as well, the sweep keeps its axis tops and
 // ceilings, its series are copied end to end into storage (grown when it
@@ -29,18 +29,22 @@ func respondSize(dst []byte, storage []float64, r *SizeResponse, packed, fast bo
 	if !fast || sweep == nil || !sizeSweepKnown {
 		return appendTo(dst, respond(r, nil)), nil
 	}
-	r.Sweep = nil
-	b, err := json.Marshal(r)
-	r.Sweep = sweep
-	if err != nil {
-		return appendTo(dst, respond(r, nil)), nil // what could not be encoded: the general encoder says so
+	out, ok := appendSizeAnswer(dst, r)
+	if !ok {
+		r.Sweep = nil
+		b, err := json.Marshal(r)
+		r.Sweep = sweep
+		if err != nil {
+			return appendTo(dst, respond(r, nil)), nil // what could not be encoded: the general encoder says so
+		}
+		out = append(dst, b[:len(b)-1]...)
 	}
-	out := append(append(dst, b[:len(b)-1]...), `,"sweep":`...)
+	out = append(out, `,"sweep":`...)
 	var series []float64
 	if packed {
 		series = packSizeSweep(storage[:0], sweep)
 	}
-	out, ok := appendSizeSweep(out, sweep, packed)
+	out, ok = appendSizeSweep(out, sweep, packed)
 	if !ok || !finite(series) {
 		return appendTo(dst, respond(r, nil)), nil // a number that is not finite: the general encoder says so
 	}

@@ -219,3 +219,71 @@ func FuzzSizeSweepWriter(f *testing.F) {
 		}
 	})
 }
+
+// TestAppendSizeAnswerMembers: appendSizeAnswer writes every member of the
+// size answer's types (the sweep aside), and for answers of random values,
+// with every pointer nil or every one set, with every boolean true or
+// false and with the members that may be left out empty or not, the bytes
+// of the general encoder without the sweep and the closing brace. A string
+// that JSON escapes is declined. Reference: goccy/go-json's encoding.
+func TestAppendSizeAnswerMembers(t *testing.T) {
+	members := slices.DeleteFunc(jsonMembers(reflect.TypeFor[SizeResponse](), ""), func(m string) bool { return strings.HasPrefix(m, "sweep.") })
+	if !slices.Equal(members, sizeAnswerMembers) || !slices.Equal(jsonMembers(reflect.TypeFor[core.FilterFit](), ""), sizeFilterMembers) {
+		t.Fatalf("the answer's members are %q,\nappendSizeAnswer writes %q (sizeAnswerMembers): add the new member to both, in sizeanswer.go", members, sizeAnswerMembers)
+	}
+	rng := rand.New(rand.NewPCG(3, 4))
+	for i := range 400 {
+		var r SizeResponse
+		fill(reflect.ValueOf(&r).Elem(), rng, i%2 == 0)
+		r.Sweep = nil
+		if i%4 >= 2 { // booleans false, and what omitempty leaves out empty
+			r.OK = false
+			r.Countercurrent.Reachable, r.Countercurrent.Message = false, ""
+			if c := r.Current; c != nil {
+				c.QD.OK, c.QD.AtMinimum, c.QB.Flow = false, false, nil
+			}
+			if c := r.Choice; c != nil {
+				c.Filters[1].Meets = false
+				if i%8 >= 4 {
+					c.Filters = nil
+				}
+			}
+		}
+		want, err := json.Marshal(&r)
+		if err != nil {
+			t.Fatal(err)
+		}
+		got, ok := appendSizeAnswer([]byte("kept"), &r)
+		if !ok || string(got) != "kept"+string(want[:len(want)-1]) {
+			t.Fatalf("appendSizeAnswer = %s, %v,\nwant kept%s (a member added to the answer must be added to appendSizeAnswer in sizeanswer.go)", got, ok, want[:len(want)-1])
+		}
+		r.Cocurrent.Message = `the "target"`
+		if _, ok := appendSizeAnswer(nil, &r); ok {
+			t.Fatalf("appendSizeAnswer took a message with quotes")
+		}
+	}
+	// The page's answers go this way: every answer of sizeRequests with
+	// plain labels.
+	taken := 0
+	for _, request := range sizeRequests() {
+		var req SizeRequest
+		if decode([]byte(request), &req) != nil {
+			continue
+		}
+		spec, err := req.spec()
+		if err != nil {
+			continue
+		}
+		s, err := core.Size(spec)
+		if err != nil {
+			continue
+		}
+		r := SizeResponse{OK: true, Input: SizeInput{TargetClearance: spec.Target, QB: spec.QB, QD: spec.QD, Blood: spec.Blood, QF: spec.QF, Sieving: spec.Sieving, Flow: spec.Flow.String(), MarginPercent: spec.MarginPercent}, Sizing: s}
+		if _, ok := appendSizeAnswer(nil, &r); ok {
+			taken++
+		}
+	}
+	if taken < 20 {
+		t.Errorf("appendSizeAnswer wrote %d of the answers of sizeRequests, want 20 or more", taken)
+	}
+}
