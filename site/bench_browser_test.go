@@ -195,7 +195,7 @@ func TestBenchBrowserCheck(t *testing.T) {
 // clearance, the input event, style and layout of the results and the
 // chart forced (painting not included). (2) The calculation's share: the
 // same inputs again with clearkit.size wrapped, timing the bridge call and
-// a JSON.parse of its answer (the view's chart series travel as JSON text).
+// a JSON.parse of its answer (the chart series travel apart, packed).
 func TestBenchBrowserSize(t *testing.T) {
 	p := openPage(t, "")
 	p.showView("size")
