@@ -180,12 +180,17 @@ func ceilingFlow(a Arrangement, other, target float64) (float64, bool) {
 // num formats a number for a message: six significant digits.
 func num(x float64) string { return strconv.FormatFloat(x, 'g', 6, 64) }
 
-// flowAbove formats the flow x of "QD above x" in a message: rounded up to
-// a tenth of a mL/min, so that any flow set above the number shown is above
-// x, and always with its one decimal, as the page shows flows (the number
-// then keeps its width while the target changes, and the page lays out
-// its sentence again only where the digits are).
+// flowAbove formats the flow x of "QD above x" (or "QD x would") in a
+// message: rounded up to a tenth of a mL/min, so that any flow set above
+// the number shown is above x, and always with its one decimal, as the
+// page shows flows (the number then keeps its width while the target
+// changes, and the page lays out its sentence again only where the digits
+// are).
 func flowAbove(x float64) string { return strconv.FormatFloat(math.Ceil(x*10)/10, 'f', 1, 64) }
+
+// atMost formats the clearance x of "at most x" in a message: rounded down
+// to a tenth of a mL/min, with its one decimal, for the same reasons.
+func atMost(x float64) string { return strconv.FormatFloat(math.Floor(x*10)/10, 'f', 1, 64) }
 
 // K0FromReference returns the mass transfer coefficient K0 (cm/min) of a
 // membrane from a reference filter of the same family: its rated KoA
@@ -384,15 +389,15 @@ func flowShortfall(a Arrangement, vary string, other, koa, target float64, r Ran
 	}
 	if r.Max < MaxFlow && clearance(MaxFlow) >= target {
 		msg := fmt.Sprintf("no %s up to %s mL/min reaches %s mL/min with this filter at %s %s (at most %s mL/min)",
-			name, num(r.Max), num(target), otherName, num(other), num(best))
+			name, num(r.Max), num(target), otherName, num(other), atMost(best))
 		if s, err := minimumFlow(a, vary, other, koa, target, Range{r.Max, MaxFlow}, m); err == nil {
-			msg += fmt.Sprintf("; %s %s mL/min would", name, num(s.Flow))
+			msg += fmt.Sprintf("; %s %s mL/min would", name, flowAbove(s.Flow))
 		}
 		return &FieldError{Field: vary + "_range", Message: msg, Limit: &best}
 	}
 	most := clearance(MaxFlow)
 	msg := fmt.Sprintf("cannot reach %s mL/min at %s %s mL/min with any %s: it gives at most %s mL/min (%s at %s mL/min); a larger filter or a higher %s is needed",
-		num(target), otherName, num(other), name, num(most), name, num(MaxFlow), otherName)
+		num(target), otherName, num(other), name, atMost(most), name, num(MaxFlow), otherName)
 	return &FieldError{Field: "current_filter", Message: msg, Limit: &best}
 }
 

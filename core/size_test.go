@@ -523,7 +523,7 @@ func TestMinimumFlowNoBracket(t *testing.T) {
 		t.Fatal(err2)
 	}
 	flowRefusal(t, "MinimumQD(countercurrent, 300, 700, 250, [100, 700])", err, "qd_range",
-		core.Dialysance(core.Countercurrent, 300, 700, 700), "no QD up to 700 mL/min", fmt.Sprintf("QD %.6g mL/min would", beyond.Flow))
+		core.Dialysance(core.Countercurrent, 300, 700, 700), "no QD up to 700 mL/min", fmt.Sprintf("QD %.1f mL/min would", math.Ceil(beyond.Flow*10)/10)) // to a tenth, rounded up
 
 	// No flow at all: with QD unbounded, counter-current clearance tends
 	// to QB (1 - e^(-KoA/QB)) (the Cr = 0 limit, REFERENCES), here

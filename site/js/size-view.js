@@ -191,7 +191,7 @@ export function mountSize(root, engine) {
       } else if (s && s.at_minimum) {
         text = `${flow}: the lowest settable ${flow}, ${formatNumber(s.flow, 1)} mL/min, already reaches the target.`;
       }
-      setText(note, text);
+      showSentence(note, text); // its numbers follow the target: in boxes
       setData(note, 'state', !s ? '' : s.ok ? 'ok' : 'error');
     }
   }
