@@ -78,3 +78,20 @@ func TestSentenceRoundingExact(t *testing.T) {
 		}
 	}
 }
+
+// upTenth rounds up to a tenth, with one decimal, and takes a value a
+// rounding error above a tenth as that tenth. Reference: the decimal
+// values themselves (worked by hand).
+func TestUpTenth(t *testing.T) {
+	for _, c := range []struct {
+		x    float64
+		want string
+	}{
+		{985.7142857142857, "985.8"}, {426.0, "426.0"}, {300, "300.0"}, {0.1 * 3, "0.3"},
+		{600.0000000000001, "600.0"}, {600.00001, "600.1"}, {249.01, "249.1"}, {0, "0.0"},
+	} {
+		if got := upTenth(c.x); got != c.want {
+			t.Errorf("upTenth(%v) = %q, want %q", c.x, got, c.want)
+		}
+	}
+}

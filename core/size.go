@@ -186,11 +186,19 @@ func num(x float64) string { return strconv.FormatFloat(x, 'g', 6, 64) }
 // page shows flows (the number then keeps its width while the target
 // changes, and the page lays out its sentence again only where the digits
 // are).
-func flowAbove(x float64) string { return strconv.FormatFloat(math.Ceil(x*10)/10, 'f', 1, 64) }
+func flowAbove(x float64) string { return upTenth(x) }
 
-// atMost formats the clearance x of "at most x" in a message: rounded down
-// to a tenth of a mL/min, with its one decimal, for the same reasons.
-func atMost(x float64) string { return strconv.FormatFloat(math.Floor(x*10)/10, 'f', 1, 64) }
+// atMost formats the clearance x of "at most x" in a message: rounded up
+// to a tenth of a mL/min, so that it stays a bound, with its one decimal,
+// for the same reasons.
+func atMost(x float64) string { return upTenth(x) }
+
+// upTenth writes x >= 0 rounded up to a tenth, with one decimal. A value
+// within a part in 1e12 of a tenth (600.0000000000001, the rounding of a
+// formula that gives 600) is that tenth, not the next.
+func upTenth(x float64) string {
+	return strconv.FormatFloat(math.Ceil(x*10*(1-1e-12))/10, 'f', 1, 64)
+}
 
 // K0FromReference returns the mass transfer coefficient K0 (cm/min) of a
 // membrane from a reference filter of the same family: its rated KoA

@@ -62,7 +62,8 @@ func TestNumberBoxesFit(t *testing.T) {
 }
 
 // TestShowSentence: format.js showSentence puts each number of a sentence
-// (with its sign) in a box (span.num with data-chars, its length) and keeps the words as
+// (with its sign and what touches it) in a box (span.num with data-chars,
+// its length, one more for each of % ± +, none with a letter) and keeps the words as
 // text; the same words with other numbers change only the boxes' text (the
 // same nodes stay); other words build the sentence again; an empty text
 // leaves the element empty (so that :empty hides it). The sentence's text
@@ -88,6 +89,8 @@ func TestShowSentence(t *testing.T) {
 		out.push(look(false));
 		showSentence(p, 'error +4.0 %, gap (-2.4 %)');
 		out.push(look(false));
+		showSentence(p, 'within ±10 %; CO2 at -2.0%), 12');
+		out.push(look(false));
 		showSentence(p, '');
 		out.push(look(false));
 		return out;
@@ -97,7 +100,8 @@ func TestShowSentence(t *testing.T) {
 		{Text: "QD above 1004.4 mL/min, or QB above 429.4 mL/min.", Boxes: "1004.4:6 429.4:5", Kept: true},
 		{Text: "both QB and QD above 500.0 mL/min", Boxes: "500.0:5"},
 		{Text: "12 of 300", Boxes: "12:2 300:3"},
-		{Text: "error +4.0 %, gap (-2.4 %)", Boxes: "+4.0:4 -2.4:4"},
+		{Text: "error +4.0 %, gap (-2.4 %)", Boxes: "+4.0:5 (-2.4:5"},
+		{Text: "within ±10 %; CO2 at -2.0%), 12", Boxes: "±10:4 CO2: -2.0%),:8 12:2"},
 		{Empty: true},
 	}
 	if len(got) != len(want) {

@@ -79,6 +79,9 @@ function showFindings(list, findings) {
     let li = items[k];
     if (!li) {
       li = document.createElement('li');
+      // Read out whole when a number in it changes (the results are a
+      // live region, and showSentence changes only the number's box).
+      li.setAttribute('aria-atomic', 'true');
       const symbol = document.createElement('span');
       symbol.className = 'finding-symbol';
       symbol.setAttribute('aria-hidden', 'true');

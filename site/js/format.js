@@ -47,20 +47,24 @@ export function renderOutputs(root, data, keep = null) {
 // with the full value in data-value; a null value shows the output's
 // data-null word where it has one ("cannot reach"). An output whose text
 // and value are unchanged is left alone, so that the browser lays out
-// again only what changed; data-chars holds the length of the text, which
-// style.css uses to give a view's numbers boxes of their own.
+// again only what changed; data-chars holds the length of the text (empty
+// for a data-null word), which style.css uses to give a view's numbers
+// boxes of their own.
 export function showNumber(out, value, digits, options) {
-  const text = value === null && out.dataset.null !== undefined ? out.dataset.null : formatNumber(value, digits, options);
+  const word = value === null && out.dataset.null !== undefined;
+  const text = word ? out.dataset.null : formatNumber(value, digits, options);
   const full = typeof value === 'number' ? String(value) : '';
   if (out.getAttribute('data-value') !== full) out.setAttribute('data-value', full);
   if (out.textContent === text) return;
-  const chars = String(text.length);
+  const chars = word ? '' : String(text.length); // a word ("no rating") gets no box: letters are not 1ch
+  
   if (out.getAttribute('data-chars') !== chars) out.setAttribute('data-chars', chars);
   setText(out, text);
 }
 
 // showSentence puts text in node with each of its numbers (a run of
-// digits with an optional sign and decimal part) in a box of its own, <span
+// digits with an optional sign and decimal part, and what touches it: see
+// NUMBER) in a box of its own, <span
 // class="num" data-chars="n">, as showNumber's outputs have: a sentence
 // whose numbers follow the input (an out-of-reach message, say) then
 // changes only inside its boxes from one keystroke to the next, and the
@@ -78,7 +82,7 @@ export function showSentence(node, text) {
       }
       const box = document.createElement('span');
       box.className = 'num';
-      box.dataset.chars = String(part.length);
+      box.dataset.chars = boxChars(part);
       box.textContent = part;
       children.push(box);
     });
@@ -87,13 +91,24 @@ export function showSentence(node, text) {
   }
   let box = node.firstElementChild;
   for (let i = 1; i < parts.length; i += 2) {
-    setData(box, 'chars', String(parts[i].length));
+    setData(box, 'chars', boxChars(parts[i]));
     setText(box, parts[i]);
     box = box.nextElementSibling;
   }
 }
 
-const NUMBER = /([+-]?[0-9]+(?:\.[0-9]+)?)/; // with its sign: a box apart would split "+3.6"
+// A number with its sign and whatever touches it on either side ("(+3.6",
+// "-2.0%),"): a line may break on either side of a box, so what touches
+// the number goes in its box rather than be left at the end of a line.
+const NUMBER = /([^\s0-9]*[+-]?[0-9]+(?:\.[0-9]+)?[^\s]*)/;
+
+// boxChars is the width of part's box in characters (data-chars): its
+// length, with one more for each of %, ± and +, which are wider than a
+// digit; none (no box) when part holds a letter ("CO2").
+function boxChars(part) {
+  if (/[A-Za-z]/.test(part)) return '';
+  return String(part.length + (part.match(/[%±+]/g)?.length ?? 0));
+}
 
 // sameWords tells whether node's children are parts' words (text nodes,
 // empty ones left out) and a number box in the place of each number.
