@@ -608,7 +608,31 @@ type Sizing struct {
 // refuses it; a target out of reach of the other arrangement only marks
 // that arrangement unreachable. A flow solve that fails is reported in its
 // FlowAnswer, not as an error of the whole.
-func Size(s SizeSpec) (Sizing, error) {
+func Size(s SizeSpec) (Sizing, error) { return SizeWith(s, nil) }
+
+// SweepMemo keeps the chart series of the last sizing question answered
+// with it and what they were computed from (the flow model, QB, QD, K0, the
+// top of the KoA axis and the number of points). The series do not depend
+// on the target clearance, the filters or the margin, except through the
+// axis top, so a page that asks again with a new target (a keystroke)
+// gets the same series without computing them again. The zero value is an
+// empty memo; a SweepMemo is not safe for concurrent use.
+type SweepMemo struct {
+	key   sweepKey
+	sweep *SizeSweep
+}
+
+type sweepKey struct {
+	m                  sizeModel
+	qb, qd, k0, koaMax float64
+	n                  int
+}
+
+// SizeWith is Size with the chart series taken from memo when they were
+// computed from the same inputs, and kept there when not. The series
+// returned are shared with later answers: they must not be changed. A
+// nil memo computes them every time.
+func SizeWith(s SizeSpec, memo *SweepMemo) (Sizing, error) {
 	if err := s.validate(); err != nil {
 		return Sizing{}, err
 	}
@@ -648,7 +672,7 @@ func Size(s SizeSpec) (Sizing, error) {
 		out.Current = s.current(c)
 	}
 	if s.Sweep != nil {
-		out.Sweep = s.sweep(koa)
+		out.Sweep = s.sweep(koa, memo)
 	}
 	return out, nil
 }
@@ -835,7 +859,7 @@ func answer(s FlowSolve, err error, r Range) FlowAnswer {
 }
 
 // sweep computes both chart series.
-func (s SizeSpec) sweep(required float64) *SizeSweep {
+func (s SizeSpec) sweep(required float64, memo *SweepMemo) *SizeSweep {
 	n := s.Sweep.Points
 	if n == 0 {
 		n = DefaultSweepPoints
@@ -844,10 +868,18 @@ func (s SizeSpec) sweep(required float64) *SizeSweep {
 	if koaMax == 0 {
 		koaMax = math.Max(2000, 2*required)
 	}
-	return &SizeSweep{
+	key := sweepKey{m: s.model(), qb: s.QB, qd: s.QD, k0: s.K0, koaMax: koaMax, n: n}
+	if memo != nil && memo.sweep != nil && memo.key == key {
+		return memo.sweep
+	}
+	sw := &SizeSweep{
 		KoAMax:         koaMax,
 		AreaM2Max:      s.area(koaMax),
-		Countercurrent: s.model().series(Countercurrent, s.QB, s.QD, koaMax, s.K0, n),
-		Cocurrent:      s.model().series(Cocurrent, s.QB, s.QD, koaMax, s.K0, n),
+		Countercurrent: key.m.series(Countercurrent, s.QB, s.QD, koaMax, s.K0, n),
+		Cocurrent:      key.m.series(Cocurrent, s.QB, s.QD, koaMax, s.K0, n),
 	}
+	if memo != nil {
+		memo.key, memo.sweep = key, sw
+	}
+	return sw
 }

@@ -2,6 +2,7 @@ package api
 
 import (
 	"fmt"
+	"sync"
 
 	"clearkit/core"
 )
@@ -106,7 +107,7 @@ func size(dst []byte, storage []float64, request []byte, packed, fast bool) ([]b
 	if err != nil {
 		return appendTo(dst, failure(err)), nil
 	}
-	s, err := core.Size(spec)
+	s, err := sizing(spec, packed)
 	if err != nil {
 		return appendTo(dst, failure(err)), nil
 	}
@@ -124,6 +125,28 @@ func size(dst []byte, storage []float64, request []byte, packed, fast bool) ([]b
 		},
 		Sizing: s,
 	}, packed, fast)
+}
+
+// sweepMemo keeps the chart series of the last size answer with packed
+// series, the page's (see core.SweepMemo): a keystroke in the size view
+// changes the target, and the series, which depend on the flows and not
+// on the target, are then taken as they were. Size and AppendSize compute
+// them every time; TestSizePacked compares the two.
+var sweepMemo struct {
+	sync.Mutex
+	memo core.SweepMemo
+}
+
+// sizing answers spec by core.Size, or by core.SizeWith with sweepMemo.
+// The series it returns are not changed afterwards (respondSize reads
+// them), so the memo is held only while they are looked up or computed.
+func sizing(spec core.SizeSpec, memo bool) (core.Sizing, error) {
+	if !memo {
+		return core.Size(spec)
+	}
+	sweepMemo.Lock()
+	defer sweepMemo.Unlock()
+	return core.SizeWith(spec, &sweepMemo.memo)
 }
 
 func (r *SizeRequest) spec() (s core.SizeSpec, err error) {

@@ -65,22 +65,27 @@ var sizeSeriesNames = [2][3]string{
 // sizeSeriesOf lists s's series and their names in the order packSizeSweep
 // lays them: each arrangement's target and koa, and its area_m2 where it
 // has one (the JSON leaves an empty one out), so that the packing names
-// exactly the series the JSON would hold (TestSizeSweepWriter).
-func sizeSeriesOf(s *core.SizeSweep) (names []string, series [][]float64) {
+// exactly the series the JSON would hold (TestSizeSweepWriter). They go
+// into the caller's arrays (which then need not be allocated); it returns
+// how many there are.
+func sizeSeriesOf(s *core.SizeSweep, names *[6]string, series *[6][]float64) int {
+	n := 0
 	for k, one := range [2]*core.SizeSeries{&s.Countercurrent, &s.Cocurrent} {
 		for m, xs := range [3][]float64{one.Target, one.KoA, one.AreaM2} {
 			if m < 2 || len(xs) > 0 {
-				names, series = append(names, sizeSeriesNames[k][m]), append(series, xs)
+				names[n], series[n] = sizeSeriesNames[k][m], xs
+				n++
 			}
 		}
 	}
-	return names, series
+	return n
 }
 
 // packSizeSweep appends s's series end to end to storage.
 func packSizeSweep(storage []float64, s *core.SizeSweep) []float64 {
-	_, series := sizeSeriesOf(s)
-	for _, xs := range series {
+	var names [6]string
+	var series [6][]float64
+	for _, xs := range series[:sizeSeriesOf(s, &names, &series)] {
 		storage = append(storage, xs...)
 	}
 	return storage
@@ -89,16 +94,18 @@ func packSizeSweep(storage []float64, s *core.SizeSweep) []float64 {
 // appendSizePacking appends the "packed" member of a packed size answer,
 // as the general encoder writes a Packing (TestSizePacked).
 func appendSizePacking(b []byte, s *core.SizeSweep) []byte {
-	names, series := sizeSeriesOf(s)
+	var names [6]string
+	var series [6][]float64
+	n := sizeSeriesOf(s, &names, &series)
 	b = append(b, `,"packed":{"into":"sweep","lengths":[`...)
-	for k, xs := range series {
+	for k, xs := range series[:n] {
 		if k > 0 {
 			b = append(b, ',')
 		}
 		b = strconv.AppendInt(b, int64(len(xs)), 10)
 	}
 	b = append(b, ']')
-	b, _ = appendSeriesNames(b, names) // plain names: TestSizePacked
+	b, _ = appendSeriesNames(b, names[:n]) // plain names: TestSizePacked
 	return b
 }
 
