@@ -96,12 +96,15 @@ func SizePacked(dst []byte, storage []float64, request []byte) ([]byte, []float6
 }
 
 // size answers all three, appending the response to dst and the packed
-// series to storage (when it has room); with fast false it encodes the
+// series to storage (when it has room); with fast false it decodes the
+// request with the general decoder only (see sizefast.go) and encodes the
 // whole answer with the general encoder (see respondSize).
 func size(dst []byte, storage []float64, request []byte, packed, fast bool) ([]byte, []float64) {
 	var req SizeRequest
-	if err := decode(request, &req); err != nil {
-		return appendTo(dst, failure(err)), nil
+	if !fast || !req.decodeFast(request) {
+		if err := decodeCopy(request, &req); err != nil {
+			return appendTo(dst, failure(err)), nil
+		}
 	}
 	spec, err := req.spec()
 	if err != nil {

@@ -1,0 +1,265 @@
+package api
+
+import (
+	"bytes"
+	"math"
+	"math/rand/v2"
+	"slices"
+	"strconv"
+	"strings"
+	"testing"
+
+	"clearkit/internal/badinput"
+)
+
+// The fast decoder of size (sizefast.go) must leave every answer as the
+// general decoder gives it, byte for byte: these tests send the same
+// request both ways, size(dst, nil, request, false, true) and size(nil,
+// nil, request, false, false), the fast way after bytes dst holds
+// already, as the bridge's buffer does. (Packed, the general way writes
+// the series as JSON; TestSizePacked compares the packed answers with
+// these.)
+
+// sizePageRequest is what the size view sends with its demo (site/js/size-view.js).
+const sizePageRequest = `{"target_clearance":"250","qb":"300","qd":"500","flow":"countercurrent","qf":"","sieving":"","hct":"","plasma_water":"","red_cell_water":"","k0":"0.05","margin_percent":"10","sweep":{},"current_filter":{"koa":"700","area_m2":""},"qd_range":["300","800"],"qb_range":["150","450"],"filters":[{"label":"Shelf A","area_m2":"1.4","koa":""},{"label":"Shelf B","area_m2":"1.8","koa":""},{"label":"Shelf C","area_m2":"2.1","koa":""}]}`
+
+// sameSizeBothWays fails t unless request gets the same answer both ways,
+// and reports whether the fast decoder took it.
+func sameSizeBothWays(t testing.TB, request []byte) bool {
+	t.Helper()
+	dst := append(make([]byte, 0, 4096), "kept"...)
+	fast, _ := size(dst, nil, request, false, true)
+	general, _ := size(nil, nil, request, false, false)
+	if !bytes.HasPrefix(fast, dst) {
+		t.Errorf("size(%q) did not keep dst %q: %.20s", clip(string(request)), dst, fast)
+	}
+	if fast = fast[len(dst):]; !bytes.Equal(fast, general) {
+		t.Errorf("size(%q):\nfast path    %s\ngeneral path %s", request, fast, general)
+	}
+	var req SizeRequest
+	return req.decodeFast(request)
+}
+
+// TestSizeFastPathPageRequest: the fast decoder takes what the page sends,
+// with every optional part and with none, and reads it as the general
+// decoder does.
+func TestSizeFastPathPageRequest(t *testing.T) {
+	with := strings.Replace(sizePageRequest, `"sweep":{}`, `"sweep":{},"reference":{"koa":"900","area_m2":"1.8"}`, 1)
+	with = strings.Replace(with, `"k0":"0.05"`, `"k0":""`, 1)
+	bare := `{"target_clearance":"250","qb":"300","qd":"500","flow":"cocurrent","qf":"","sieving":"","hct":"32","plasma_water":"","red_cell_water":"","k0":"","margin_percent":"","sweep":{}}`
+	for _, r := range []string{sizePageRequest, with, bare, " \n" + sizePageRequest + "\t", `{"target_clearance":250,"qb":300,"qd":500,"sweep":{"points":21,"koa_max":"4000"}}`} {
+		if !sameSizeBothWays(t, []byte(r)) {
+			t.Errorf("decodeFast declined %s: the fast path is not used", r)
+		}
+	}
+	var fast, general SizeRequest
+	if !fast.decodeFast([]byte(with)) {
+		t.Fatal("declined")
+	}
+	if err := decode([]byte(with), &general); err != nil {
+		t.Fatal(err)
+	}
+	if !sameRequest(fast, general) {
+		t.Errorf("decodeFast read\n%+v\nthe general decoder\n%+v", fast, general)
+	}
+}
+
+// sameRequest compares two size requests member by member, the numbers
+// by the bytes they hold.
+func sameRequest(a, b SizeRequest) bool {
+	num := func(x, y Number) bool { return bytes.Equal(x.raw, y.raw) && (x.raw == nil) == (y.raw == nil) }
+	nums := func(x, y []Number) bool { return slices.EqualFunc(x, y, num) && (x == nil) == (y == nil) }
+	filter := func(x, y FilterRequest) bool {
+		return x.Label == y.Label && num(x.KoA, y.KoA) && num(x.AreaM2, y.AreaM2)
+	}
+	return num(a.TargetClearance, b.TargetClearance) && num(a.QB, b.QB) && num(a.QD, b.QD) &&
+		num(a.QF, b.QF) && num(a.Sieving, b.Sieving) && num(a.Hct, b.Hct) && num(a.PlasmaWater, b.PlasmaWater) &&
+		num(a.RedCellWater, b.RedCellWater) && a.Flow == b.Flow && num(a.K0, b.K0) && num(a.MarginPercent, b.MarginPercent) &&
+		(a.Reference == nil) == (b.Reference == nil) && (a.Reference == nil || num(a.Reference.KoA, b.Reference.KoA) && num(a.Reference.AreaM2, b.Reference.AreaM2)) &&
+		(a.CurrentFilter == nil) == (b.CurrentFilter == nil) && (a.CurrentFilter == nil || filter(*a.CurrentFilter, *b.CurrentFilter)) &&
+		nums(a.QDRange, b.QDRange) && nums(a.QBRange, b.QBRange) &&
+		slices.EqualFunc(a.Filters, b.Filters, filter) && (a.Filters == nil) == (b.Filters == nil) &&
+		(a.Sweep == nil) == (b.Sweep == nil) && (a.Sweep == nil || num(a.Sweep.Points, b.Sweep.Points) && num(a.Sweep.KoAMax, b.Sweep.KoAMax))
+}
+
+// TestSizeFastPathCatalogue sends the bad-input catalogue's size section
+// (testdata/bad-input.json: the cases of every entry and size's own, its
+// valid request and examples) and sizeRequests both ways.
+func TestSizeFastPathCatalogue(t *testing.T) {
+	c, err := badinput.Load()
+	if err != nil {
+		t.Fatal(err)
+	}
+	section := c.Entries["size"]
+	bodies := [][]byte{section.Valid}
+	for _, ex := range section.Examples {
+		bodies = append(bodies, ex)
+	}
+	cases, err := c.Cases("size")
+	if err != nil {
+		t.Fatal(err)
+	}
+	for _, cs := range cases {
+		bodies = append(bodies, cs.Body)
+	}
+	for _, r := range sizeRequests() {
+		bodies = append(bodies, []byte(r))
+	}
+	fast := 0
+	for _, b := range bodies {
+		if sameSizeBothWays(t, b) {
+			fast++
+		}
+	}
+	if fast < len(bodies)/3 {
+		t.Errorf("the fast decoder took %d of %d requests, want at least a third", fast, len(bodies))
+	}
+	t.Logf("%d requests, %d by the fast decoder", len(bodies), fast)
+}
+
+// TestSizeFastPathRandom sends seeded random size requests both ways:
+// mostly the page's shape (with valid and bad values alike), and every
+// kind the fast decoder must leave to the general one.
+func TestSizeFastPathRandom(t *testing.T) {
+	rng := rand.New(rand.NewPCG(17, 19))
+	n, fast := 4000, 0
+	if testing.Short() {
+		n = 400
+	}
+	for range n {
+		if sameSizeBothWays(t, randomSizeRequest(rng)) {
+			fast++
+		}
+		if t.Failed() {
+			return
+		}
+	}
+	if fast < n/4 || fast > n*9/10 {
+		t.Errorf("the fast decoder took %d of %d random requests, want between a quarter and nine tenths", fast, n)
+	}
+	t.Logf("%d requests, %d by the fast decoder", n, fast)
+}
+
+// FuzzSizeFastPath: whatever the request, both decoders give the same
+// bytes.
+func FuzzSizeFastPath(f *testing.F) {
+	rng := rand.New(rand.NewPCG(23, 29))
+	for range 40 {
+		f.Add(randomSizeRequest(rng))
+	}
+	f.Add([]byte(sizePageRequest))
+	f.Fuzz(func(t *testing.T, request []byte) {
+		sameSizeBothWays(t, request)
+	})
+}
+
+// randomSizeRequest builds a size request of the page's shape from random
+// members, values and white space, and now and then breaks it: a key
+// repeated, unknown, escaped or in capitals, a value of another type, an
+// array empty or of one or three, a label that is not plain ASCII, the
+// text cut short or followed by more.
+func randomSizeRequest(rng *rand.Rand) []byte {
+	space := func() string {
+		if rng.IntN(30) != 0 {
+			return ""
+		}
+		if rng.IntN(20) == 0 {
+			return []string{"\v", "\u00a0"}[rng.IntN(2)] // not JSON's
+		}
+		return []string{" ", "\t", "\n", "\r\n  "}[rng.IntN(4)]
+	}
+	// value is a number's value at about scale.
+	value := func(scale float64) string {
+		if rng.IntN(6) == 0 {
+			return `""`
+		}
+		k := randomNames[rng.IntN(len(randomNames))]
+		v := randomValue(rng, slices.Index(randomNames, k))
+		if rng.IntN(12) != 0 { // mostly plausible magnitudes, as strings
+			v = `"` + strconv.FormatFloat(math.Round(rng.Float64()*scale*10)/10, 'g', -1, 64) + `"`
+		}
+		return v
+	}
+	object := func(members ...string) string { // name, value, name, value...
+		var parts []string
+		for i := 0; i < len(members); i += 2 {
+			if rng.IntN(12) == 0 {
+				continue // left out
+			}
+			name := members[i]
+			switch rng.IntN(600) {
+			case 0:
+				name = strings.ToUpper(name)
+			case 1:
+				name += "x"
+			case 2:
+				name = `k\u0030`
+			}
+			parts = append(parts, `"`+name+`"`+space()+":"+space()+members[i+1])
+			if rng.IntN(600) == 0 { // given twice
+				parts = append(parts, `"`+name+`":`+members[i+1])
+			}
+		}
+		return "{" + space() + strings.Join(parts, space()+","+space()) + space() + "}"
+	}
+	array := func(n int, elem func() string) string {
+		parts := make([]string, n)
+		for i := range parts {
+			parts[i] = elem()
+		}
+		return "[" + space() + strings.Join(parts, ","+space()) + space() + "]"
+	}
+	odd := func(v string) string { // now and then a value of another type
+		if rng.IntN(150) == 0 {
+			return []string{"null", "true", "{}", "[]", "1", `"x"`, `{"a":1}`, "[null]"}[rng.IntN(8)]
+		}
+		return v
+	}
+	label := func() string {
+		if rng.IntN(20) == 0 {
+			return `"` + []string{"Größe", `x\"y`, "tab\there", "\x7f"}[rng.IntN(4)] + `"`
+		}
+		return `"` + []string{"Shelf A", "B-2", "", "large 1.8"}[rng.IntN(4)] + `"`
+	}
+	filter := func() string {
+		return odd(object("label", label(), "area_m2", value(2.5), "koa", value(1500)))
+	}
+	pairLen := func() int { return []int{2, 2, 2, 2, 2, 2, 2, 2, 2, 2, 2, 2, 0, 1, 3}[rng.IntN(15)] }
+	members := []string{
+		"target_clearance", value(320), "qb", value(500), "qd", value(800),
+		"flow", odd(`"` + []string{"countercurrent", "cocurrent", "counter", ""}[rng.IntN(4)] + `"`),
+		"qf", value(20), "sieving", value(1), "hct", value(45), "plasma_water", value(1), "red_cell_water", value(1),
+		"k0", value(0.08), "margin_percent", value(30),
+		"sweep", odd([]string{"{}", "{}", "{}", object("points", value(200), "koa_max", value(5000))}[rng.IntN(4)]),
+	}
+	if rng.IntN(3) == 0 {
+		members = append(members, "reference", odd(object("koa", value(1500), "area_m2", value(2.5))))
+	}
+	if rng.IntN(3) != 0 {
+		members = append(members, "current_filter", filter())
+	}
+	for _, name := range []string{"qd_range", "qb_range"} {
+		if rng.IntN(3) != 0 {
+			members = append(members, name, odd(array(pairLen(), func() string { return value(900) })))
+		}
+	}
+	if rng.IntN(4) != 0 {
+		members = append(members, "filters", odd(array(rng.IntN(5), filter)))
+	}
+	if rng.IntN(8) == 0 { // another order
+		pairs := len(members) / 2
+		for i := range pairs {
+			j := rng.IntN(pairs)
+			members[2*i], members[2*j] = members[2*j], members[2*i]
+			members[2*i+1], members[2*j+1] = members[2*j+1], members[2*i+1]
+		}
+	}
+	s := space() + object(members...) + space()
+	switch rng.IntN(40) {
+	case 0:
+		s = s[:rng.IntN(len(s)+1)]
+	case 1:
+		s += []string{"}", "x", "{}", " 1", ","}[rng.IntN(5)]
+	}
+	return []byte(s)
+}
