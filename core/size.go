@@ -139,13 +139,13 @@ func unreachable(a Arrangement, qb, qd, target float64) *FieldError {
 	ceiling := Ceiling(a, qb, qd)
 	var ways []string
 	if cc := Ceiling(Countercurrent, qb, qd); a == Cocurrent && target < cc {
-		ways = append(ways, fmt.Sprintf("counter-current flow (ceiling %s mL/min)", num(cc)))
+		ways = append(ways, "counter-current flow (ceiling "+num(cc)+" mL/min)")
 	}
 	if q, ok := ceilingFlow(a, qb, target); ok {
-		ways = append(ways, fmt.Sprintf("QD above %s mL/min", flowAbove(q)))
+		ways = append(ways, "QD above "+flowAbove(q)+" mL/min")
 	}
 	if q, ok := ceilingFlow(a, qd, target); ok {
-		ways = append(ways, fmt.Sprintf("QB above %s mL/min", flowAbove(q)))
+		ways = append(ways, "QB above "+flowAbove(q)+" mL/min")
 	}
 	if len(ways) == 0 {
 		// Neither flow alone will do. At equal flows q the ceiling is q
@@ -154,10 +154,10 @@ func unreachable(a Arrangement, qb, qd, target float64) *FieldError {
 		if a == Cocurrent {
 			q = 2 * target
 		}
-		ways = append(ways, fmt.Sprintf("both QB and QD above %s mL/min", flowAbove(q)))
+		ways = append(ways, "both QB and QD above "+flowAbove(q)+" mL/min")
 	}
-	msg := fmt.Sprintf("must be below the %s ceiling of %s mL/min at QB %s and QD %s mL/min, which no filter reaches; it becomes reachable with %s",
-		a.label(), num(ceiling), num(qb), num(qd), strings.Join(ways, ", or with "))
+	msg := "must be below the " + a.label() + " ceiling of " + num(ceiling) + " mL/min at QB " + num(qb) + " and QD " + num(qd) +
+		" mL/min, which no filter reaches; it becomes reachable with " + strings.Join(ways, ", or with ")
 	return &FieldError{Field: "target_clearance", Message: msg, Limit: &ceiling}
 }
 
@@ -206,10 +206,10 @@ func upTenth(x float64) string {
 // (KoA = K0 A; REFERENCES). Errors name "reference.koa" and
 // "reference.area_m2".
 func K0FromReference(koa, areaM2 float64) (float64, error) {
-	if err := checkFilterKoA("reference.koa", koa); err != nil {
+	if err := checkFilterKoA("reference", ".koa", koa); err != nil {
 		return 0, err
 	}
-	if err := checkArea("reference.area_m2", areaM2); err != nil {
+	if err := checkArea("reference", ".area_m2", areaM2); err != nil {
 		return 0, err
 	}
 	k0 := koa / (areaM2 * CM2PerM2)
@@ -235,25 +235,32 @@ func checkK0(field string, v float64) error {
 	return nil
 }
 
-func checkArea(field string, v float64) error {
+// checkArea validates a membrane area, of field+member ("filters[2]",
+// ".area_m2"): the name is put together only for an error, as a size
+// question checks every filter's fields at every call.
+func checkArea(field, member string, v float64) error {
 	switch {
 	case math.IsNaN(v) || math.IsInf(v, 0):
-		return fieldErrorf(field, "must be a finite number")
+		return fieldErrorf(field+member, "must be a finite number")
 	case v <= 0:
-		return fieldErrorf(field, "must be greater than 0 m² (got %g)", v)
+		return fieldErrorf(field+member, "must be greater than 0 m² (got %g)", v)
 	case v > MaxArea:
-		return fieldErrorf(field, "is beyond any filter (maximum %g m², got %g)", MaxArea, v)
+		return fieldErrorf(field+member, "is beyond any filter (maximum %g m², got %g)", MaxArea, v)
 	}
 	return nil
 }
 
-// checkFilterKoA validates the KoA of a real filter, which must be > 0.
-func checkFilterKoA(field string, v float64) error {
-	if err := checkKoA(field, v); err != nil {
+// checkFilterKoA validates the KoA of a real filter, which must be > 0, of
+// field+member as checkArea.
+func checkFilterKoA(field, member string, v float64) error {
+	if v > 0 && v <= MaxKoA {
+		return nil // checkKoA's range, less 0
+	}
+	if err := checkKoA(field+member, v); err != nil {
 		return err
 	}
 	if v == 0 {
-		return fieldErrorf(field, "must be greater than 0 mL/min (a filter of KoA 0 clears nothing)")
+		return fieldErrorf(field+member, "must be greater than 0 mL/min (a filter of KoA 0 clears nothing)")
 	}
 	return nil
 }
@@ -275,13 +282,13 @@ func (f Filter) resolve(field string, k0 float64) (koa float64, area *float64, e
 	case f.KoA == 0 && f.AreaM2 == 0:
 		return 0, nil, fieldErrorf(field+".koa", "give the filter's KoA or its membrane area")
 	case f.KoA != 0:
-		if err := checkFilterKoA(field+".koa", f.KoA); err != nil {
+		if err := checkFilterKoA(field, ".koa", f.KoA); err != nil {
 			return 0, nil, err
 		}
 		koa = f.KoA
 	}
 	if f.AreaM2 != 0 {
-		if err := checkArea(field+".area_m2", f.AreaM2); err != nil {
+		if err := checkArea(field, ".area_m2", f.AreaM2); err != nil {
 			return 0, nil, err
 		}
 		a := f.AreaM2
@@ -346,7 +353,7 @@ func MinimumQB(a Arrangement, qd, koa, target float64, r Range) (FlowSolve, erro
 // minimumFlow solves for the flow named vary ("qd" or "qb") with the other
 // flow held at other, by the sizing model m (size_conditions.go).
 func minimumFlow(a Arrangement, vary string, other, koa, target float64, r Range, m sizeModel) (FlowSolve, error) {
-	if err := checkFilterKoA("current_filter.koa", koa); err != nil {
+	if err := checkFilterKoA("current_filter", ".koa", koa); err != nil {
 		return FlowSolve{}, err
 	}
 	if err := checkTarget(target); err != nil {
@@ -396,16 +403,16 @@ func flowShortfall(a Arrangement, vary string, other, koa, target float64, r Ran
 		otherName = "QD"
 	}
 	if r.Max < MaxFlow && clearance(MaxFlow) >= target {
-		msg := fmt.Sprintf("no %s up to %s mL/min reaches %s mL/min with this filter at %s %s (at most %s mL/min)",
-			name, num(r.Max), num(target), otherName, num(other), atMost(best))
+		msg := "no " + name + " up to " + num(r.Max) + " mL/min reaches " + num(target) + " mL/min with this filter at " +
+			otherName + " " + num(other) + " (at most " + atMost(best) + " mL/min)"
 		if s, err := minimumFlow(a, vary, other, koa, target, Range{r.Max, MaxFlow}, m); err == nil {
-			msg += fmt.Sprintf("; %s %s mL/min would", name, flowAbove(s.Flow))
+			msg += "; " + name + " " + flowAbove(s.Flow) + " mL/min would"
 		}
 		return &FieldError{Field: vary + "_range", Message: msg, Limit: &best}
 	}
 	most := clearance(MaxFlow)
-	msg := fmt.Sprintf("cannot reach %s mL/min at %s %s mL/min with any %s: it gives at most %s mL/min (%s at %s mL/min); a larger filter or a higher %s is needed",
-		num(target), otherName, num(other), name, atMost(most), name, num(MaxFlow), otherName)
+	msg := "cannot reach " + num(target) + " mL/min at " + otherName + " " + num(other) + " mL/min with any " + name +
+		": it gives at most " + atMost(most) + " mL/min (" + name + " at " + num(MaxFlow) + " mL/min); a larger filter or a higher " + otherName + " is needed"
 	return &FieldError{Field: "current_filter", Message: msg, Limit: &best}
 }
 
@@ -662,7 +669,7 @@ func SizeWith(s SizeSpec, memo *SweepMemo) (Sizing, error) {
 
 	filters := make([]resolvedFilter, len(s.Filters))
 	for i, f := range s.Filters {
-		filters[i], _ = s.resolveFilter(fmt.Sprintf("filters[%d]", i), f, i)
+		filters[i], _ = s.resolveFilter(filterField(i), f, i)
 	}
 	if len(filters) > 0 {
 		out.Choice = s.choose(koa, filters)
@@ -677,6 +684,9 @@ func SizeWith(s SizeSpec, memo *SweepMemo) (Sizing, error) {
 	return out, nil
 }
 
+// filterField is the field of filter i of a size request: "filters[i]".
+func filterField(i int) string { return "filters[" + strconv.Itoa(i) + "]" }
+
 type resolvedFilter struct {
 	label string
 	koa   float64
@@ -687,7 +697,7 @@ func (s SizeSpec) resolveFilter(field string, f Filter, i int) (resolvedFilter, 
 	koa, area, err := f.resolve(field, s.K0)
 	label := strings.TrimSpace(f.Label)
 	if label == "" {
-		label = fmt.Sprintf("filter %d", i+1)
+		label = "filter " + strconv.Itoa(i+1)
 	}
 	return resolvedFilter{label, koa, area}, err
 }
@@ -737,7 +747,7 @@ func (s SizeSpec) validate() error {
 		return fieldErrorf("filters", "lists %d filters: at most %d", len(s.Filters), MaxFilters)
 	}
 	for i, f := range s.Filters {
-		field := fmt.Sprintf("filters[%d]", i)
+		field := filterField(i)
 		if n := utf8.RuneCountInString(f.Label); n > MaxLabelLength || !utf8.ValidString(f.Label) {
 			return fieldErrorf(field+".label", "must be valid text of at most %d characters (got %d)", MaxLabelLength, n)
 		}
@@ -765,7 +775,7 @@ func (s SizeSpec) validate() error {
 			return fieldErrorf("sweep.points", "must be a whole number from %d to %d (got %d)", MinSweepPoints, MaxSweepPoints, n)
 		}
 		if k := s.Sweep.KoAMax; k != 0 {
-			if err := checkFilterKoA("sweep.koa_max", k); err != nil {
+			if err := checkFilterKoA("sweep", ".koa_max", k); err != nil {
 				return err
 			}
 		}

@@ -106,7 +106,7 @@ func (m sizeModel) unreachable(a Arrangement, qb, qd, target float64) *FieldErro
 	qbw, qf := m.qbw(qb), m.f.QF
 	var ways []string
 	if cc := m.ceiling(Countercurrent, qb, qd); a == Cocurrent && target < cc {
-		ways = append(ways, fmt.Sprintf("counter-current flow (ceiling %s mL/min)", num(cc)))
+		ways = append(ways, "counter-current flow (ceiling "+num(cc)+" mL/min)")
 	}
 	// QD above x at this QB, QB above y at this QD.
 	if qbw > target {
@@ -115,7 +115,7 @@ func (m sizeModel) unreachable(a Arrangement, qb, qd, target float64) *FieldErro
 			x = qbw * (target - qf) / (qbw - target)
 		}
 		if x = math.Max(x, 0); x < MaxFlow {
-			ways = append(ways, fmt.Sprintf("QD above %s mL/min", flowAbove(x)))
+			ways = append(ways, "QD above "+flowAbove(x)+" mL/min")
 		}
 	}
 	if qd+qf > target {
@@ -124,7 +124,7 @@ func (m sizeModel) unreachable(a Arrangement, qb, qd, target float64) *FieldErro
 			y = target * qd / (qd + qf - target)
 		}
 		if y /= m.water; y < MaxFlow {
-			ways = append(ways, fmt.Sprintf("QB above %s mL/min", flowAbove(y)))
+			ways = append(ways, "QB above "+flowAbove(y)+" mL/min")
 		}
 	}
 	if len(ways) == 0 {
@@ -132,10 +132,10 @@ func (m sizeModel) unreachable(a Arrangement, qb, qd, target float64) *FieldErro
 	}
 	what := ""
 	if m.water != 1 {
-		what = fmt.Sprintf(" (blood-water flow %s mL/min)", num(qbw))
+		what = " (blood-water flow " + num(qbw) + " mL/min)"
 	}
-	msg := fmt.Sprintf("must be below the %s ceiling of %s mL/min at QB %s%s and QD %s mL/min, which no filter reaches; it becomes reachable with %s",
-		a.label(), num(ceiling), num(qb), what, num(qd), strings.Join(ways, ", or with "))
+	msg := "must be below the " + a.label() + " ceiling of " + num(ceiling) + " mL/min at QB " + num(qb) + what + " and QD " + num(qd) +
+		" mL/min, which no filter reaches; it becomes reachable with " + strings.Join(ways, ", or with ")
 	return &FieldError{Field: "target_clearance", Message: msg, Limit: &ceiling}
 }
 
