@@ -4,6 +4,7 @@ import (
 	"bytes"
 	"math"
 	"math/rand/v2"
+	"reflect"
 	"slices"
 	"strconv"
 	"strings"
@@ -262,4 +263,57 @@ func randomSizeRequest(rng *rand.Rand) []byte {
 		s += []string{"}", "x", "{}", " 1", ","}[rng.IntN(5)]
 	}
 	return []byte(s)
+}
+
+// TestSizeDecodeFastMembers: the names decodeFast reads are the JSON
+// members of the request types, found through reflection (SizeRequest
+// with Conditions' members, FilterRequest, ReferenceRequest,
+// SizeSweepRequest), so that a member added to them is not left out of
+// the fast decoder unseen (requests with it would be declined: correct,
+// but slow); and a request with every member, each a value of its own,
+// is read as the general decoder reads it.
+func TestSizeDecodeFastMembers(t *testing.T) {
+	var names func(typ reflect.Type) []string
+	names = func(typ reflect.Type) []string {
+		var out []string
+		for i := range typ.NumField() {
+			f := typ.Field(i)
+			name, _, _ := strings.Cut(f.Tag.Get("json"), ",")
+			if f.Anonymous && name == "" {
+				out = append(out, names(f.Type)...)
+				continue
+			}
+			out = append(out, name)
+		}
+		slices.Sort(out)
+		return out
+	}
+	sorted := func(s []string) []string { return slices.Sorted(slices.Values(s)) }
+	for _, c := range []struct {
+		typ  reflect.Type
+		flat []string
+	}{
+		{reflect.TypeFor[SizeRequest](), sizeFlat[:]},
+		{reflect.TypeFor[FilterRequest](), filterFlat[:]},
+		{reflect.TypeFor[ReferenceRequest](), referenceFlat[:]},
+		{reflect.TypeFor[SizeSweepRequest](), sweepFlat[:]},
+	} {
+		if got, want := sorted(c.flat), names(c.typ); !slices.Equal(got, want) {
+			t.Errorf("decodeFast reads %v of a %v, whose members are %v", got, c.typ, want)
+		}
+	}
+	all := `{"target_clearance":"1.5","qb":"2.5","qd":"3.5","flow":"cocurrent","qf":"4.5","sieving":"5.5","hct":"6.5",` +
+		`"plasma_water":"7.5","red_cell_water":"8.5","k0":"9.5","margin_percent":"10.5","sweep":{"points":"11","koa_max":"12.5"},` +
+		`"reference":{"koa":"13.5","area_m2":"14.5"},"current_filter":{"label":"in use","area_m2":"15.5","koa":"16.5"},` +
+		`"qd_range":["17.5","18.5"],"qb_range":["19.5","20.5"],"filters":[{"label":"A","area_m2":"21.5","koa":"22.5"},{"label":"B","area_m2":"23.5","koa":"24.5"}]}`
+	var fast, general SizeRequest
+	if !fast.decodeFast([]byte(all)) {
+		t.Fatalf("decodeFast declined %s", all)
+	}
+	if err := decode([]byte(all), &general); err != nil {
+		t.Fatal(err)
+	}
+	if !sameRequest(fast, general) {
+		t.Errorf("decodeFast(%s) read\n%+v\nthe general decoder\n%+v", all, fast, general)
+	}
 }
