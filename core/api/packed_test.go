@@ -144,14 +144,15 @@ func TestSizePacked(t *testing.T) {
 	// The size view's request (site/js/size-view.js, its demo).
 	view := `{"target_clearance":"250","qb":"300","qd":"500","flow":"countercurrent","qf":"","sieving":"","hct":"","plasma_water":"","red_cell_water":"","k0":"0.05","margin_percent":"10","sweep":{},"current_filter":{"koa":"700","area_m2":""},"qd_range":["300","800"],"qb_range":["150","450"],"filters":[{"label":"Shelf A","area_m2":"1.4","koa":""},{"label":"Shelf B","area_m2":"1.8","koa":""},{"label":"Shelf C","area_m2":"2.1","koa":""}]}`
 	checkPacked(t, entry, []byte(view), api.Size([]byte(view)))
-	// Typed a digit at a time and then stepped, as at the page: SizePacked
-	// keeps the series of its last answer (core.SweepMemo) and takes them
-	// again when only the target changed, so every answer is compared with
-	// Size's, which computes them afresh: targets whose KoA axis stays at
-	// 2000 mL/min (below about 260 mL/min here), targets that move it, one
-	// out of reach, and a new QB in between.
-	for _, k := range []string{"2", "25", "250", "251", "258", "264", "270", "299", "301", "264", "250", "26"} {
-		for _, qb := range []string{"300", "300", "320"} {
+	// Typed a digit at a time and then stepped, as at the page, at one QB
+	// and then at another: SizePacked keeps the series of its last answer
+	// (core.SweepMemo) and takes them again when only the target changed,
+	// so every answer is compared with Size's, which computes them afresh:
+	// targets whose KoA axis stays at 2000 mL/min (below about 260 mL/min
+	// here), targets that move it, one out of reach, and the same request
+	// twice.
+	for _, qb := range []string{"300", "320"} {
+		for _, k := range []string{"2", "25", "250", "251", "258", "264", "270", "299", "301", "264", "250", "250", "26"} {
 			request := strings.NewReplacer(`"target_clearance":"250"`, `"target_clearance":"`+k+`"`, `"qb":"300"`, `"qb":"`+qb+`"`).Replace(view)
 			checkPacked(t, entry, []byte(request), api.Size([]byte(request)))
 		}

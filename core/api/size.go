@@ -140,9 +140,10 @@ var sweepMemo struct {
 	memo core.SweepMemo
 }
 
-// sizing answers spec by core.Size, or by core.SizeWith with sweepMemo.
-// The series it returns are not changed afterwards (respondSize reads
-// them), so the memo is held only while they are looked up or computed.
+// sizing answers spec by core.Size, or by core.SizeWith with sweepMemo,
+// which is held for the whole call (the page's calls come one at a time;
+// native callers of SizePacked take turns). The series it returns are not
+// changed afterwards (respondSize only reads them), so they need no lock.
 func sizing(spec core.SizeSpec, memo bool) (core.Sizing, error) {
 	if !memo {
 		return core.Size(spec)

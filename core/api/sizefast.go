@@ -18,7 +18,9 @@ var sizeFlat = [...]string{
 	"k0", "margin_percent", "sweep", "reference", "current_filter", "qd_range", "qb_range", "filters",
 }
 
-// The members of sizeFlat that are not numbers.
+// The members of sizeFlat that are not numbers, by their place in it
+// (TestSizeDecodeFastMembers checks the places); decodeFast's numbers
+// follow the same order.
 const (
 	sizeFlow          = 3
 	sizeSweep         = 11
@@ -28,6 +30,9 @@ const (
 	sizeQBRange       = 15
 	sizeFilters       = 16
 )
+
+// A fastObject's seen holds a bit per name: sizeFlat must not grow past 32.
+var _ [32 - len(sizeFlat)]struct{}
 
 var (
 	filterFlat    = [...]string{"label", "area_m2", "koa"}
@@ -40,12 +45,14 @@ var (
 // the members of sizeFlat, each at most once, whose numbers are JSON
 // numbers, strings of printable ASCII without escapes, or null (as in
 // compare's flat request); flow a string of the same; sweep, reference and
-// current_filter objects of their members, qd_range and qb_range arrays,
-// and filters an array of objects of label, area_m2 and koa, where every
-// value is a number or such a string (no null) and no array is empty; with
-// only JSON white space between the tokens, and at most MaxRequestBytes.
-// The Numbers share request's bytes, so request must not change while
-// they are read.
+// current_filter objects of their members, qd_range and qb_range arrays of
+// numbers, and filters an array of objects of label, area_m2 and koa,
+// where a label is such a string, every number below the top level a JSON
+// number or such a string (no null), and no array is empty; with only
+// JSON white space between the tokens, and at most MaxRequestBytes. A
+// label with a letter beyond ASCII is declined, as a string with an
+// escape is: the general decoder reads it. The Numbers share request's
+// bytes, so request must not change while they are read.
 func (r *SizeRequest) decodeFast(request []byte) bool {
 	if len(request) > MaxRequestBytes {
 		return false

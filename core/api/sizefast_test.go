@@ -302,6 +302,12 @@ func TestSizeDecodeFastMembers(t *testing.T) {
 			t.Errorf("decodeFast reads %v of a %v, whose members are %v", got, c.typ, want)
 		}
 	}
+	for k, name := range map[int]string{sizeFlow: "flow", sizeSweep: "sweep", sizeReference: "reference", sizeCurrentFilter: "current_filter",
+		sizeQDRange: "qd_range", sizeQBRange: "qb_range", sizeFilters: "filters"} {
+		if sizeFlat[k] != name {
+			t.Errorf("sizeFlat[%d] is %q, decodeFast reads it as %q", k, sizeFlat[k], name)
+		}
+	}
 	all := `{"target_clearance":"1.5","qb":"2.5","qd":"3.5","flow":"cocurrent","qf":"4.5","sieving":"5.5","hct":"6.5",` +
 		`"plasma_water":"7.5","red_cell_water":"8.5","k0":"9.5","margin_percent":"10.5","sweep":{"points":"11","koa_max":"12.5"},` +
 		`"reference":{"koa":"13.5","area_m2":"14.5"},"current_filter":{"label":"in use","area_m2":"15.5","koa":"16.5"},` +

@@ -176,7 +176,9 @@ func sizeRequests() []string {
 func SizeRequestsForTest() []string { return sizeRequests() }
 
 // TestSizeBothWays: every request of sizeRequests gets the same bytes with
-// the series written by appendSizeSweep as from the general encoder; and
+// the series written by appendSizeSweep (and the request read by the fast
+// decoder, sizefast.go, where it takes it) as from the general encoder
+// (and decoder); and
 // packed, appended after what dst holds into storage that holds an earlier
 // answer's values, it gets the same JSON and series as packed into none,
 // with the series in that storage.
@@ -206,7 +208,8 @@ func TestSizeBothWays(t *testing.T) {
 	}
 }
 
-// FuzzSizeSweepWriter: whatever the request, both ways give the same bytes.
+// FuzzSizeSweepWriter: whatever the request, both ways (the fast decoder
+// and writers, the general ones) give the same bytes.
 func FuzzSizeSweepWriter(f *testing.F) {
 	for _, request := range sizeRequests() {
 		f.Add([]byte(request))
