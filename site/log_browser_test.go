@@ -526,6 +526,20 @@ func TestLastInputsSurviveReload(t *testing.T) {
 	}
 }
 
+// TestLastInputsKeptWhileTyping: the inputs are kept 200 ms after the
+// last keystroke of a burst (last-inputs.js moves one timer's time due at
+// each keystroke rather than setting a timer anew), without a reload:
+// keystrokes typed one after another, then what localStorage holds.
+func TestLastInputsKeptWhileTyping(t *testing.T) {
+	p := openPage(t, "")
+	p.do(chromedp.Focus(chromedp.CSS("#compare-qb")),
+		chromedp.Evaluate[chromedp.Void](`document.querySelector('#compare-qb').select()`),
+		chromedp.SendKeys(chromedp.CSS("#compare-qb"), "4"), chromedp.Sleep(120*time.Millisecond),
+		chromedp.SendKeys(chromedp.CSS("#compare-qb"), "1"), chromedp.Sleep(120*time.Millisecond),
+		chromedp.SendKeys(chromedp.CSS("#compare-qb"), "3"))
+	p.waitFor(`(JSON.parse(localStorage.getItem('clearkit.inputs.compare') || '{}').qb) === '413'`, 5*time.Second)
+}
+
 // refuseStorage makes the next documents of the tab behave as Chromium
 // does when the user blocks site data: IndexedDB.open and localStorage
 // throw a SecurityError.

@@ -27,10 +27,24 @@ export function keepInputs(onRefused) {
       refused = true;
       onRefused();
     };
+    // soon saves 200 ms after the last input. One timer serves a burst of
+    // keystrokes: each moves the time due, and the timer, when it fires
+    // early, waits again for the rest (setting a timer at every keystroke
+    // took 0.1 to 0.2 ms of it at 4x throttle).
     let timer = 0;
+    let due = 0;
+    const fire = () => {
+      const wait = due - performance.now();
+      if (wait > 0) {
+        timer = setTimeout(fire, wait);
+        return;
+      }
+      timer = 0;
+      save();
+    };
     const soon = () => {
-      clearTimeout(timer);
-      timer = setTimeout(save, 200);
+      due = performance.now() + 200;
+      if (!timer) timer = setTimeout(fire, 200);
     };
     const section = sectionOf(name);
     for (const type of ['input', 'change', 'click']) section.addEventListener(type, soon);
