@@ -1,5 +1,7 @@
 package api
 
+import "unicode/utf8"
+
 // The fast decoder of size. The size view sends a request at every
 // keystroke; the general decoder (goccy/go-json's reflection, then
 // checkKeys' walk) is a fifth of the call under WebAssembly, and, as the
@@ -44,15 +46,14 @@ var (
 // whether it did; r is left as it was when not. It takes: an object of
 // the members of sizeFlat, each at most once, whose numbers are JSON
 // numbers, strings of printable ASCII without escapes, or null (as in
-// compare's flat request); flow a string of the same; sweep, reference and
+// compare's flat request); flow a string (text); sweep, reference and
 // current_filter objects of their members, qd_range and qb_range arrays of
 // numbers, and filters an array of objects of label, area_m2 and koa,
-// where a label is such a string, every number below the top level a JSON
-// number or such a string (no null), and no array is empty; with only
-// JSON white space between the tokens, and at most MaxRequestBytes. A
-// label with a letter beyond ASCII is declined, as a string with an
-// escape is: the general decoder reads it. The Numbers share request's
-// bytes, so request must not change while they are read.
+// where a label is a string (text), every number below the top level a
+// JSON number or such a string (no null), and no array is empty; with
+// only JSON white space between the tokens, and at most MaxRequestBytes.
+// The Numbers share request's bytes, so request must not change while
+// they are read.
 func (r *SizeRequest) decodeFast(request []byte) bool {
 	if len(request) > MaxRequestBytes {
 		return false
@@ -217,19 +218,31 @@ func (d *fastDecoder) number(n *Number, null bool) bool {
 	return true
 }
 
-// text reads a string of printable ASCII without escapes: its bytes are
-// the Go string the general decoder makes of it.
+// text reads a string without escapes or control characters whose bytes
+// are valid UTF-8 (a label may hold any letter: "Filtre à fibres"): its
+// bytes are then the Go string the general decoder makes of it, which
+// changes only escapes and bytes that are not UTF-8.
 func (d *fastDecoder) text() (string, bool) {
 	s, i := d.s, d.i
 	if i >= len(s) || s[i] != '"' {
 		return "", false
 	}
-	end := flatString(s, i)
-	if end < 0 {
-		return "", false
+	ascii := true
+	for j := i + 1; j < len(s); j++ {
+		switch c := s[j]; {
+		case c == '"':
+			if !ascii && !utf8.Valid(s[i+1:j]) {
+				return "", false
+			}
+			d.i = j + 1
+			return string(s[i+1 : j]), true
+		case c < 0x20 || c == '\\':
+			return "", false
+		case c >= 0x80:
+			ascii = false
+		}
 	}
-	d.i = end
-	return string(s[i+1 : end-1]), true
+	return "", false
 }
 
 // numbers reads an object of names, whose values go to ns in order.

@@ -48,7 +48,8 @@ func TestSizeFastPathPageRequest(t *testing.T) {
 	with := strings.Replace(sizePageRequest, `"sweep":{}`, `"sweep":{},"reference":{"koa":"900","area_m2":"1.8"}`, 1)
 	with = strings.Replace(with, `"k0":"0.05"`, `"k0":""`, 1)
 	bare := `{"target_clearance":"250","qb":"300","qd":"500","flow":"cocurrent","qf":"","sieving":"","hct":"32","plasma_water":"","red_cell_water":"","k0":"","margin_percent":"","sweep":{}}`
-	for _, r := range []string{sizePageRequest, with, bare, " \n" + sizePageRequest + "\t", `{"target_clearance":250,"qb":300,"qd":500,"sweep":{"points":21,"koa_max":"4000"}}`} {
+	accents := strings.Replace(sizePageRequest, "Shelf A", "Filtre à fibres 1,4", 1) // a label beyond ASCII
+	for _, r := range []string{sizePageRequest, with, bare, accents, " \n" + sizePageRequest + "\t", `{"target_clearance":250,"qb":300,"qd":500,"sweep":{"points":21,"koa_max":"4000"}}`} {
 		if !sameSizeBothWays(t, []byte(r)) {
 			t.Errorf("decodeFast declined %s: the fast path is not used", r)
 		}
@@ -217,8 +218,11 @@ func randomSizeRequest(rng *rand.Rand) []byte {
 		return v
 	}
 	label := func() string {
-		if rng.IntN(20) == 0 {
-			return `"` + []string{"Größe", `x\"y`, "tab\there", "\x7f"}[rng.IntN(4)] + `"`
+		if rng.IntN(20) == 0 { // escapes, control characters, bytes that are not UTF-8
+			return `"` + []string{`x\"y`, `\u00e0`, "tab\there", "\xff", "a\xc3", "\xed\xa0\x80", "\xf4\x90\x80\x80"}[rng.IntN(7)] + `"`
+		}
+		if rng.IntN(10) == 0 { // letters beyond ASCII, a character JSON need not escape
+			return `"` + []string{"Größe", "Filtre à fibres", "\x7f", "水", "😀 F-2"}[rng.IntN(5)] + `"`
 		}
 		return `"` + []string{"Shelf A", "B-2", "", "large 1.8"}[rng.IntN(4)] + `"`
 	}
