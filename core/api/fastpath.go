@@ -24,122 +24,6 @@ import (
 // bytes (the bad-input catalogue, the fuzz corpora, seeded random requests
 // and FuzzFastPath), and that the encoder writes every member of the answer.
 
-// maxFlatFields bounds the members of a flat request (the bits of
-// flatValues.seen).
-const maxFlatFields = 16
-
-// flatValues are the members decodeFlat found: bit k of seen is set when
-// the member names[k] was given, and at[k] holds the start and end of its
-// value in the request.
-type flatValues struct {
-	seen uint32
-	at   [maxFlatFields][2]uint32
-}
-
-// decodeFlat reads request into v when request is a flat JSON object
-// whose every key is one of names, written exactly (no escape, no other
-// case) and at most once, and whose every value is null, a JSON number, or
-// a string of printable ASCII without escapes (or, for the member
-// names[object], the empty object, its only value read here; object -1
-// for none), with only JSON white space (space, tab, line feed, carriage
-// return) between the tokens, and returns true. A value's bytes, as
-// written, are what the general decoder hands Number.UnmarshalJSON. For
-// any other request (larger than MaxRequestBytes, nested, unknown or
-// repeated keys, other values, malformed) it returns false: decode then
-// reads it, or says what is wrong with it. Each key is compared first
-// with the name after the last one found, so that a request written in the
-// order of names (as the page writes it) finds each at once.
-func decodeFlat(request []byte, names []string, object int, v *flatValues) bool {
-	if len(request) > MaxRequestBytes || len(names) > maxFlatFields {
-		return false
-	}
-	s := request
-	i := flatSpace(s, 0)
-	if i >= len(s) || s[i] != '{' {
-		return false
-	}
-	next := 0 // where the next key is looked for first
-	i = flatSpace(s, i+1)
-	if i < len(s) && s[i] == '}' {
-		i++
-	} else {
-		for {
-			// the key
-			if i >= len(s) || s[i] != '"' {
-				return false
-			}
-			k, end := -1, -1
-			if next < len(names) {
-				// the name expected next, and its closing quote
-				if n := names[next]; len(s)-i > len(n)+1 && string(s[i+1:i+1+len(n)]) == n && s[i+1+len(n)] == '"' {
-					k, end = next, i+len(n)+2
-				}
-			}
-			if k < 0 {
-				if end = flatString(s, i); end < 0 {
-					return false
-				}
-				key := s[i+1 : end-1]
-				for j := range names {
-					if names[j] == string(key) {
-						k = j
-						break
-					}
-				}
-			}
-			if k < 0 || v.seen&(1<<k) != 0 {
-				return false
-			}
-			v.seen |= 1 << k
-			next = k + 1
-			i = flatSpace(s, end)
-			if i >= len(s) || s[i] != ':' {
-				return false
-			}
-			// the value
-			i = flatSpace(s, i+1)
-			if i >= len(s) {
-				return false
-			}
-			switch c := s[i]; {
-			case k == object:
-				end = -1
-				if j := flatSpace(s, i+1); c == '{' && j < len(s) && s[j] == '}' {
-					end = j + 1
-				}
-			case c == '"':
-				end = flatString(s, i)
-			case c == 'n':
-				end = -1
-				if len(s)-i >= 4 && string(s[i:i+4]) == "null" {
-					end = i + 4
-				}
-			case c == '-' || c >= '0' && c <= '9':
-				end = flatNumber(s, i)
-			default:
-				end = -1
-			}
-			if end < 0 {
-				return false
-			}
-			v.at[k] = [2]uint32{uint32(i), uint32(end)}
-			i = flatSpace(s, end)
-			if i >= len(s) {
-				return false
-			}
-			if s[i] == '}' {
-				i++
-				break
-			}
-			if s[i] != ',' {
-				return false
-			}
-			i = flatSpace(s, i+1)
-		}
-	}
-	return flatSpace(s, i) == len(s)
-}
-
 // flatSpace returns the position of the first byte at or after i that is
 // not JSON white space.
 func flatSpace(s []byte, i int) int {
@@ -209,28 +93,52 @@ var compareFlat = [...]string{
 	"sweep",
 }
 
-// decodeFast reads a flat compare request (decodeFlat) into r, whose
-// sweep may be given as {}, and reports whether it did; r is left as it
-// was when not. The Numbers share request's bytes, so request must not
-// change while they are read.
+// decodeFast reads a flat compare request into r and reports whether it
+// did; r is left as it was when not. It takes a flat JSON object whose
+// every key is one of compareFlat, written exactly (no escape, no other
+// case) and at most once, and whose every value is null, a JSON number, or
+// a string of printable ASCII without escapes (for the sweep only {}, the
+// page's chart request), with only JSON white space (space, tab, line
+// feed, carriage return) between the tokens, at most MaxRequestBytes. A
+// value's bytes, as written, are what the general decoder hands
+// Number.UnmarshalJSON. Any other request (nested, unknown or repeated
+// keys, other values, malformed) is declined: decode then reads it, or
+// says what is wrong with it. The keys are read by fastDecoder.member
+// (sizefast.go), which compares each first with the name after the last
+// one found, so that the page's request finds each at once. The Numbers
+// share request's bytes, so request must not change while they are read.
 func (r *CompareRequest) decodeFast(request []byte) bool {
-	var v flatValues
-	const sweep = len(compareFlat) - 1
-	if !decodeFlat(request, compareFlat[:], sweep, &v) {
+	if len(request) > MaxRequestBytes {
 		return false
 	}
+	const sweep = len(compareFlat) - 1
+	var out CompareRequest
 	numbers := [sweep]*Number{
-		&r.QB, &r.QD, &r.KoA, &r.CBi, &r.CDi, &r.QF, &r.Sieving, &r.Hct, &r.PlasmaWater, &r.RedCellWater,
+		&out.QB, &out.QD, &out.KoA, &out.CBi, &out.CDi, &out.QF, &out.Sieving, &out.Hct, &out.PlasmaWater, &out.RedCellWater,
 	}
-	for k, n := range numbers {
-		if v.seen&(1<<k) != 0 {
-			n.raw = request[v.at[k][0]:v.at[k][1]]
+	d := fastDecoder{s: request}
+	var o fastObject
+	for {
+		k, ok := d.member(compareFlat[:], &o)
+		switch {
+		case !ok:
+			return false
+		case k < 0:
+			if d.space() != len(request) {
+				return false
+			}
+			*r = out
+			return true
+		case k == sweep:
+			out.Sweep = &emptySweep
+			ok = d.take('{') && d.take('}')
+		default:
+			ok = d.number(numbers[k], true)
+		}
+		if !ok {
+			return false
 		}
 	}
-	if v.seen&(1<<sweep) != 0 {
-		r.Sweep = &emptySweep
-	}
-	return true
 }
 
 // emptySweep is the sweep {} of every flat request, which is only read

@@ -9,7 +9,8 @@ import "unicode/utf8"
 // request is shallow: numbers as strings, two flat objects, two pairs,
 // the sweep {} and a list of flat filters. decodeFast reads that shape in
 // one pass and declines every other, as compare's fast path does
-// (fastpath.go): the general path then reads it, and gives every error.
+// (fastpath.go, which reads with the same fastDecoder): the general path
+// then reads it, and gives every error.
 // TestSizeBothWays, TestSizeFastPathCatalogue, TestSizeFastPathRandom and
 // FuzzSizeFastPath check that both give the same bytes.
 
@@ -33,8 +34,12 @@ const (
 	sizeFilters       = 16
 )
 
-// A fastObject's seen holds a bit per name: sizeFlat must not grow past 32.
-var _ [32 - len(sizeFlat)]struct{}
+// A fastObject's seen holds a bit per name: no list of names may grow
+// past 32.
+var (
+	_ [32 - len(sizeFlat)]struct{}
+	_ [32 - len(compareFlat)]struct{}
+)
 
 var (
 	filterFlat    = [...]string{"label", "area_m2", "koa"}
@@ -140,7 +145,8 @@ func (d *fastDecoder) take(c byte) bool {
 // the key's index; at the object's closing brace it returns -1. It
 // declines (false) a key not in names, written other than exactly, or
 // repeated, and anything not JSON. Each key is compared first with the
-// name after the last one found, as decodeFlat does.
+// name after the last one found, so that a request written in the order
+// of names (as the page writes it) finds each at once.
 func (d *fastDecoder) member(names []string, o *fastObject) (int, bool) {
 	if !o.open {
 		if !d.take('{') {

@@ -124,22 +124,7 @@ func TestSizeFastPathCatalogue(t *testing.T) {
 // kind the fast decoder must leave to the general one.
 func TestSizeFastPathRandom(t *testing.T) {
 	rng := rand.New(rand.NewPCG(17, 19))
-	n, fast := 4000, 0
-	if testing.Short() {
-		n = 400
-	}
-	for range n {
-		if sameSizeBothWays(t, randomSizeRequest(rng)) {
-			fast++
-		}
-		if t.Failed() {
-			return
-		}
-	}
-	if fast < n/4 || fast > n*9/10 {
-		t.Errorf("the fast decoder took %d of %d random requests, want between a quarter and nine tenths", fast, n)
-	}
-	t.Logf("%d requests, %d by the fast decoder", n, fast)
+	randomBothWays(t, 4000, func() []byte { return randomSizeRequest(rng) }, sameSizeBothWays)
 }
 
 // FuzzSizeFastPath: whatever the request, both decoders give the same
