@@ -339,12 +339,7 @@ func (w *numberWriter) member(name string, x float64) {
 }
 
 func (w *numberWriter) number(x float64) {
-	if x-x != 0 { // NaN or an infinity (x - x is NaN there, 0 elsewhere)
-		w.finite = false
-		w.b = append(w.b, '0')
-		return
-	}
-	w.b = appendJSONFloat(w.b, x)
+	w.b = appendJSONFloat(w.b, x, &w.finite)
 }
 
 // span is where a number stands in numberWriter.b.
@@ -399,7 +394,11 @@ func isSmallInteger(x float64) bool {
 // below 2^53 is written by its digits, which are that shortest decimal
 // (every other integer of as many digits or fewer is at least 1 away and
 // reads as another float), without the cost of the general search.
-func appendJSONFloat(b []byte, x float64) []byte {
+func appendJSONFloat(b []byte, x float64, finite *bool) []byte {
+	if x-x != 0 { // NaN or an infinity (x - x is NaN there, 0 elsewhere)
+		*finite = false
+		return append(b, '0')
+	}
 	if isSmallInteger(x) {
 		i := int64(x)
 		switch {

@@ -510,7 +510,7 @@ func TestAppendJSONFloat(t *testing.T) {
 		if math.IsInf(x, 0) {
 			return true // past the largest float
 		}
-		got := appendJSONFloat(nil, x)
+		got := appendJSONFloat(nil, x, new(bool))
 		want, err := json.Marshal(x)
 		if err != nil {
 			t.Fatalf("json.Marshal(%v): %v", x, err)
@@ -560,7 +560,7 @@ func FuzzAppendJSONFloat(f *testing.F) {
 		if math.IsInf(x, 0) || math.IsNaN(x) {
 			return
 		}
-		got := appendJSONFloat(nil, x)
+		got := appendJSONFloat(nil, x, new(bool))
 		want, err := stdjson.Marshal(x)
 		if err != nil || !bytes.Equal(got, want) {
 			t.Errorf("appendJSONFloat(%b) = %s, want %s (encoding/json, %v)", x, got, want, err)

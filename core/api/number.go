@@ -79,6 +79,9 @@ func isDecimal(s string) bool {
 // the raw bytes, so that an absent or empty field costs no allocation (the
 // page sends every field of its form, most of them empty).
 func (n *Number) value(field string) (float64, bool, error) {
+	if r := n.raw; len(r) == 0 || len(r) == 2 && r[0] == '"' && r[1] == '"' {
+		return 0, false, nil // absent, or the empty string of an empty input
+	}
 	if v, given, ok := quickNumber(n.raw); ok {
 		return v, given, nil
 	}

@@ -132,12 +132,19 @@ func (d *fastDecoder) space() int {
 
 // take moves past c, and the white space around it, if it is next.
 func (d *fastDecoder) take(c byte) bool {
-	if i := d.space(); i < len(d.s) && d.s[i] == c {
-		d.i = i + 1
-		d.space()
-		return true
+	s, i := d.s, d.i
+	if i >= len(s) || s[i] != c {
+		// White space first? (The page writes none: JSON.stringify.)
+		if i = flatSpace(s, i); i >= len(s) || s[i] != c {
+			d.i = i
+			return false
+		}
 	}
-	return false
+	if i++; i < len(s) && s[i] <= ' ' {
+		i = flatSpace(s, i)
+	}
+	d.i = i
+	return true
 }
 
 // member reads an object's opening brace (at its first call) or the comma
@@ -156,13 +163,13 @@ func (d *fastDecoder) member(names []string, o *fastObject) (int, bool) {
 		if d.take('}') {
 			return -1, true
 		}
-	} else {
+	} else if i := d.i; i+1 < len(d.s) && d.s[i] == ',' && d.s[i+1] == '"' {
+		d.i = i + 1 // the page's comma, with no white space: no call
+	} else if !d.take(',') {
 		if d.take('}') {
 			return -1, true
 		}
-		if !d.take(',') {
-			return 0, false
-		}
+		return 0, false
 	}
 	s, i := d.s, d.i
 	if i >= len(s) || s[i] != '"' {
@@ -190,6 +197,10 @@ func (d *fastDecoder) member(names []string, o *fastObject) (int, bool) {
 	}
 	o.seen |= 1 << k
 	o.next = k + 1
+	if end < len(s) && s[end] == ':' && end+1 < len(s) && s[end+1] > ' ' {
+		d.i = end + 1 // the page's colon, with no white space: no call
+		return k, true
+	}
 	d.i = end
 	if !d.take(':') {
 		return 0, false
