@@ -381,42 +381,12 @@ func (w *numberWriter) performance(p *core.Performance) {
 	w.b = append(w.b, '}')
 }
 
-// isSmallInteger reports whether x is an integer of magnitude below 2^53.
-func isSmallInteger(x float64) bool {
-	i := int64(x)
-	return float64(i) == x && -1<<53 < i && i < 1<<53
-}
-
-// appendJSONFloat appends the finite x as encoding/json and goccy/go-json
-// write a float64: the shortest decimal that reads back as x, in the form
-// strconv.AppendFloat gives with 'f', or with 'e' below 1e-6 and from
-// 1e21, the exponent then without a leading zero. An integer of magnitude
-// below 2^53 is written by its digits, which are that shortest decimal
-// (every other integer of as many digits or fewer is at least 1 away and
-// reads as another float), without the cost of the general search.
-func appendJSONFloat(b []byte, x float64, finite *bool) []byte {
+// appendOther is appendJSONFloat for the numbers it does not write
+// itself: below 2^-6 or from 2^53, and those JSON cannot hold.
+func appendOther(b []byte, x float64, finite *bool) []byte {
 	if x-x != 0 { // NaN or an infinity (x - x is NaN there, 0 elsewhere)
 		*finite = false
 		return append(b, '0')
-	}
-	if isSmallInteger(x) {
-		i := int64(x)
-		switch {
-		case i == 0 && math.Signbit(x):
-			return append(b, "-0"...)
-		case 0 <= i && i < 10: // 0 to 999, the answers' most frequent (flows, 1, 0), digit by digit
-			return append(b, byte('0'+i))
-		case 0 <= i && i < 100:
-			return append(b, byte('0'+i/10), byte('0'+i%10))
-		case 0 <= i && i < 1000:
-			return append(b, byte('0'+i/100), byte('0'+i/10%10), byte('0'+i%10))
-		}
-		var buf [64]byte
-		start := appendWhole(&buf, uint64(max(i, -i)), i < 0)
-		return append(b, buf[start:24]...)
-	}
-	if b, ok := appendShortestFraction(b, x); ok {
-		return b
 	}
 	format := byte('f')
 	if a := math.Abs(x); a != 0 && (a < 1e-6 || a >= 1e21) {
