@@ -93,8 +93,11 @@ var compareFlat = [...]string{
 	"sweep",
 }
 
-// decodeFast reads a flat compare request into r and reports whether it
-// did; r is left as it was when not. It takes a flat JSON object whose
+// decodeFast reads a flat compare request into r, which must be zero, and
+// reports whether it did; when not, r may hold part of the request (decode
+// then reads it into a value of its own), as r is filled as it is read
+// rather than through a copy (some 500 bytes, zeroed and copied again,
+// under WebAssembly). It takes a flat JSON object whose
 // every key is one of compareFlat, written exactly (no escape, no other
 // case) and at most once, and whose every value is null, a JSON number, or
 // a string of printable ASCII without escapes (for the sweep only {}, the
@@ -112,9 +115,8 @@ func (r *CompareRequest) decodeFast(request []byte) bool {
 		return false
 	}
 	const sweep = len(compareFlat) - 1
-	var out CompareRequest
 	numbers := [sweep]*Number{
-		&out.QB, &out.QD, &out.KoA, &out.CBi, &out.CDi, &out.QF, &out.Sieving, &out.Hct, &out.PlasmaWater, &out.RedCellWater,
+		&r.QB, &r.QD, &r.KoA, &r.CBi, &r.CDi, &r.QF, &r.Sieving, &r.Hct, &r.PlasmaWater, &r.RedCellWater,
 	}
 	d := fastDecoder{s: request}
 	var o fastObject
@@ -124,13 +126,9 @@ func (r *CompareRequest) decodeFast(request []byte) bool {
 		case !ok:
 			return false
 		case k < 0:
-			if d.space() != len(request) {
-				return false
-			}
-			*r = out
-			return true
+			return d.space() == len(request)
 		case k == sweep:
-			out.Sweep = &emptySweep
+			r.Sweep = &emptySweep
 			ok = d.take('{') && d.take('}')
 		default:
 			ok = d.number(numbers[k], true)
