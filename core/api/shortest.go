@@ -49,11 +49,23 @@ func appendJSONFloat(b []byte, x float64, finite *bool) []byte {
 	base := len(b)
 	dst := (*[64]byte)(b[base : base+64])
 	u := math.Float64bits(x)
+	if i := uint64(x); float64(i) == x && i < 1000 && u>>63 == 0 {
+		// 0 to 999, the answers' most frequent (flows, 1, 0), at once
+		switch {
+		case i < 10:
+			dst[0] = byte('0' + i)
+			return b[:base+1]
+		case i < 100:
+			dst[0], dst[1] = byte('0'+i/10), byte('0'+i%10)
+			return b[:base+2]
+		}
+		dst[0], dst[1], dst[2] = byte('0'+i/100), byte('0'+i/10%10), byte('0'+i%10)
+		return b[:base+3]
+	}
 	neg := int(u >> 63)
-	if u<<1 == 0 { // 0 and -0
-		dst[0] = '-'
-		dst[neg] = '0'
-		return b[:base+neg+1]
+	if u<<1 == 0 { // -0 (0 is above)
+		dst[0], dst[1] = '-', '0'
+		return b[:base+2]
 	}
 	biased := int(u>>52) & 0x7ff
 	e := biased - 1075
