@@ -46,7 +46,9 @@ func Compare(request []byte) []byte {
 // strconv's Append functions do: a caller that is done with each response
 // before it asks for the next (the bridge, which copies it into a
 // JavaScript string) can keep one buffer for all of them and spare an
-// allocation a call (see Entry.Append).
+// allocation a call (see Entry.Append). Unlike append, it may also write
+// into dst's room past the response (its number writer works there), so
+// no bytes there are kept.
 func AppendCompare(dst, request []byte) []byte {
 	response, _ := compare(dst, nil, request, false, true)
 	return response

@@ -32,8 +32,9 @@ type Entry struct {
 	// fast path, size's series), answers like Call with the response
 	// appended to dst (as strconv's Append functions do), so that a caller
 	// done with each response before the next call keeps one buffer for
-	// all of them: the bridge does, sparing an allocation a call. Nil for
-	// the other entries.
+	// all of them: the bridge does, sparing an allocation a call. dst's
+	// room past the response may be written too (the number writer works
+	// there), so nothing kept there survives. Nil for the other entries.
 	Append func(dst, request []byte) []byte
 	// Packed, for an entry whose answer can carry chart series, answers
 	// like Append but leaves the series out of the JSON: it returns them as

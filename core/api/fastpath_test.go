@@ -588,13 +588,14 @@ func BenchmarkCompareFastPath(b *testing.B) {
 // strconv.FormatFloat(x, 'f', -1, 64) over the range it writes itself (0,
 // and 2^-6 <= |x| < 2^53, where JSON's form is 'f'), with every byte of
 // the room it writes into set to 'x' first, so that a digit it did not
-// write shows: zero, integers and powers of two and their neighbours
-// (where the lower halfway point moves), the ends of the range, and random
-// significands over the range's exponents and a little beyond (a million
-// by default, CLEARKIT_FLOATS when set).
+// write shows, and so does one it wrote past its answer: zero, integers
+// and powers of two and their neighbours (where the lower halfway point
+// moves), the ends of the range, and random significands, odd and even
+// alike, over the range's exponents (a million by default,
+// CLEARKIT_FLOATS when set).
 func TestAppendJSONFloatDigits(t *testing.T) {
 	n := floatCount(t, 1_000_000, 50_000)
-	room := make([]byte, 64)
+	room := make([]byte, 128)
 	check := func(x float64) bool {
 		a := math.Abs(x)
 		if a != 0 && (a < 0x1p-6 || a >= 0x1p53) {
@@ -607,6 +608,9 @@ func TestAppendJSONFloatDigits(t *testing.T) {
 		got := string(appendJSONFloat(room[:0], x, &finite))
 		if want := strconv.FormatFloat(x, 'f', -1, 64); got != want || !finite {
 			t.Errorf("appendJSONFloat(%b) = %s (finite %v), want %s (strconv)", x, got, finite, want)
+		}
+		if past := bytes.TrimLeft(room[len(got):], "x"); len(past) > 0 {
+			t.Errorf("appendJSONFloat(%b) = %s wrote past its answer: %q", x, got, room[len(got):len(room)-len(past)+1])
 		}
 		return !t.Failed()
 	}
@@ -629,9 +633,11 @@ func TestAppendJSONFloatDigits(t *testing.T) {
 	}
 	rng := rand.New(rand.NewPCG(19, 23))
 	for range n {
-		// a random significand at an exponent of the range
+		// a random significand (its 52 bits drawn as they are, so that
+		// odd ones, whose halfway points do not read back, come as often
+		// as even ones) at an exponent of the range
 		e := rng.IntN(59) - 6
-		x := math.Ldexp(1+float64(rng.Uint64()>>11)/(1<<53), e)
+		x := math.Ldexp(float64(1<<52|rng.Uint64()&(1<<52-1)), e-52)
 		if rng.IntN(2) == 0 {
 			x = -x
 		}
