@@ -14,7 +14,8 @@ import (
 // TestBadInputOnPage types the catalogue's page cases (testdata/bad-input.json,
 // "page": true) into each calculation's view, section.view[data-view=NAME]:
 // the error must appear beside its field, the field marked invalid and the
-// results shown as stale; putting the valid value back clears it.
+// results shown as stale, with the note that says so in words; putting the
+// valid value back clears it.
 func TestBadInputOnPage(t *testing.T) {
 	c, err := badinput.Load()
 	if err != nil {
@@ -54,7 +55,14 @@ func TestBadInputOnPage(t *testing.T) {
 			if state := eval[string](p, fmt.Sprintf(`document.querySelector(%q).dataset.state`, view+` .results`)); state != "error" {
 				t.Errorf("%s, %s: results state %q, want error", entry, cs.Name, state)
 			}
+			note := view + ` .results > .stale-note`
+			if shown := eval[bool](p, fmt.Sprintf(`getComputedStyle(document.querySelector(%q)).display !== 'none'`, note)); !shown {
+				t.Errorf("%s, %s: the note that the results are for the last valid values is not shown", entry, cs.Name)
+			}
 			p.typeInto(input, textOf(valid[cs.PageField]))
+			if shown := eval[bool](p, fmt.Sprintf(`getComputedStyle(document.querySelector(%q)).display !== 'none'`, note)); shown {
+				t.Errorf("%s, %s: after the valid value, the stale note is still shown", entry, cs.Name)
+			}
 			if msgs := eval[string](p, fmt.Sprintf(`[...document.querySelectorAll(%q)].map(e => e.textContent).join('')`, view+` [data-error-for]`)); msgs != "" {
 				t.Errorf("%s, %s: after the valid value, errors still shown: %q", entry, cs.Name, msgs)
 			}

@@ -723,3 +723,37 @@ func TestLogEveryView(t *testing.T) {
 		t.Errorf("CSV of every view: %d rows, %v", len(rows), err)
 	}
 }
+
+// TestSaveRefusedNote: Save to log with an input in error opens no dialog
+// and says why, under the view's title (not over it: its box and the
+// title's do not meet, at both tablet orientations), marked as a warning
+// rather than with the tick of a save; the next input clears it.
+func TestSaveRefusedNote(t *testing.T) {
+	p := openPage(t, "")
+	p.waitLog()
+	for _, size := range [][2]int64{{1024, 768}, {768, 1024}} {
+		p.do(chromedp.EmulateViewport(size[0], size[1]))
+		p.typeInto("#compare-qb", "abc")
+		p.do(chromedp.Click(chromedp.CSS(`[data-save-view="compare"]`)))
+		if eval[bool](p, `document.getElementById('save-dialog').open`) {
+			t.Fatalf("%v: Save to log opened the dialog with QB in error", size)
+		}
+		note := `document.querySelector('#view-compare .save-note')`
+		if text := eval[string](p, note+`.textContent`); !strings.Contains(text, "Correct the inputs marked in red") {
+			t.Errorf("%v: refusal note %q", size, text)
+		}
+		if mark := eval[string](p, `getComputedStyle(`+note+`, '::before').content`); strings.Contains(mark, "✓") || strings.Contains(mark, `\2713`) {
+			t.Errorf("%v: the refusal is marked %s, the mark of a save", size, mark)
+		}
+		if meet := eval[bool](p, `(() => {
+			const a = `+note+`.getBoundingClientRect(), b = document.getElementById('compare-title').getBoundingClientRect();
+			return a.width > 0 && b.width > 0 && a.left < b.right && b.left < a.right && a.top < b.bottom && b.top < a.bottom;
+		})()`); meet {
+			t.Errorf("%v: the refusal note covers the view's title", size)
+		}
+		p.typeInto("#compare-qb", "300")
+		if text := eval[string](p, note+`.textContent`); text != "" {
+			t.Errorf("%v: after the next input the note still says %q", size, text)
+		}
+	}
+}

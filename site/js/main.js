@@ -20,6 +20,14 @@ async function start() {
     const engine = await loadEngine();
     version = engine.version;
     document.getElementById('app-version').textContent = `version ${engine.version}`;
+    // Every block of results says so, in words, while its inputs are in
+    // error and it still shows the last values that could be used (.stale).
+    for (const results of document.querySelectorAll('.results')) {
+      const note = document.createElement('p');
+      note.className = 'stale-note';
+      note.textContent = 'Correct the field marked in red: the results below are for the last values that could be used.';
+      results.prepend(note);
+    }
     views.set('compare', mountCompare(document.getElementById('view-compare'), engine));
     views.set('size', mountSize(document.getElementById('view-size'), engine));
     views.set('check', mountCheck(document.getElementById('view-check'), engine));

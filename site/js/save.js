@@ -42,9 +42,9 @@ export function mountSave(dialog, ctx) {
     remember('labels', { site: record.labels.site, machine_id: record.labels.machine_id, filter: record.labels.filter });
     pending = null;
     dialog.close();
-    bar.note.textContent = ctx.store.kind === 'tab'
+    tell(bar.note, 'saved', ctx.store.kind === 'tab'
       ? 'Saved for this tab only: export the log before closing it.'
-      : 'Saved to the service log.';
+      : 'Saved to the service log.');
     ctx.onSaved(record);
     // Ask once, from this user action, that the browser keep the log.
     if (!asked && ctx.store.kind === 'device') {
@@ -55,9 +55,9 @@ export function mountSave(dialog, ctx) {
 
   function ask(handle, bar) {
     const snap = handle.snapshot();
-    bar.note.textContent = '';
+    tell(bar.note, '', '');
     if (!snap) {
-      bar.note.textContent = 'Correct the inputs marked in red first: only a valid calculation can be saved.';
+      tell(bar.note, 'refused', 'Correct the inputs marked in red first: only a valid calculation can be saved.');
       return;
     }
     const now = new Date();
@@ -108,10 +108,20 @@ export function mountSave(dialog, ctx) {
     const opener = button('Save to log', 'primary', () => ask(handle, entry));
     opener.dataset.saveView = name;
     const bar = el('div', 'save-bar');
-    bar.append(note, opener);
+    bar.append(opener);
     section.prepend(bar);
+    // The note is a line of its own under the view's title, so that a long
+    // one never covers the title (the button's bar sits beside it).
+    section.querySelector(':scope > h1').after(note);
     section.addEventListener('input', () => {
-      if (note.firstChild) note.textContent = '';
+      if (note.firstChild) tell(note, '', '');
     });
   }
+}
+
+// tell shows text in a view's save note, marked as kind: 'saved' (a tick)
+// or 'refused' (a warning, in the error colour); empty text hides it.
+function tell(note, kind, text) {
+  note.dataset.kind = kind;
+  note.textContent = text;
 }
