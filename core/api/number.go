@@ -114,6 +114,9 @@ func (n *Number) parse(field string) (float64, bool, error) {
 		if !isDecimal(text) {
 			return 0, false, fieldErr(field, "must be a number (got "+strconv.Quote(clip(text))+")")
 		}
+		if thousandsComma(text) {
+			return 0, false, fieldErr(field, "is ambiguous (got "+strconv.Quote(clip(text))+"): a comma before three digits may be a thousands separator; write the number without it, or with a decimal point")
+		}
 		text = strings.Replace(text, ",", ".", 1)
 	case c == '-' || (c >= '0' && c <= '9'):
 		text = string(raw)
@@ -143,6 +146,18 @@ func (n *Number) Optional(field string, def float64) (float64, error) {
 		v = def
 	}
 	return v, err
+}
+
+// thousandsComma reports whether s, a number isDecimal accepts, ends in a
+// comma and exactly three digits after a whole part that is not zero,
+// such as "1,000" or "12,500": a decimal comma there cannot be told from
+// a thousands separator (1 or 1000?), and a flow or KoA read a thousand
+// times too small is worse than a question. "0,993", "1,5" and "5,005e2"
+// are decimal commas beyond doubt.
+func thousandsComma(s string) bool {
+	whole, fraction, ok := strings.Cut(s, ",")
+	return ok && len(fraction) == 3 && !strings.ContainsAny(fraction, "eE") &&
+		strings.Trim(strings.TrimLeft(whole, "+-"), "0") != ""
 }
 
 // kind names the JSON type that starts with c, for error messages.

@@ -2,6 +2,8 @@ package api
 
 import (
 	"regexp"
+	"strconv"
+	"strings"
 	"testing"
 )
 
@@ -30,4 +32,30 @@ func TestIsDecimal(t *testing.T) {
 		}
 	}
 	walk("", 4)
+}
+
+// TestThousandsComma: a comma before exactly three digits after a whole
+// part that is not zero is refused as ambiguous (1 or 1000?; in many
+// locales the comma groups thousands, in many others it is the decimal
+// sign: common practice, no source); any other decimal comma is read as a
+// point.
+func TestThousandsComma(t *testing.T) {
+	for _, c := range []struct {
+		text      string
+		ambiguous bool
+		value     float64 // when not ambiguous
+	}{
+		{"1,000", true, 0}, {"12,500", true, 0}, {"-1,250", true, 0}, {"+300,000", true, 0}, {"1,000e3", false, 1000}, {"5,005E2", false, 500.5},
+		{"0,993", false, 0.993}, {"-0,125", false, -0.125}, {"00,500", false, 0.5}, {",500", false, 0.5},
+		{"1,5", false, 1.5}, {"600,25", false, 600.25}, {"1,0000", false, 1}, {"1,", false, 1}, {"1000", false, 1000}, {"1.000", false, 1},
+	} {
+		n := Number{raw: []byte(strconv.Quote(c.text))}
+		v, given, err := n.value("koa")
+		switch {
+		case c.ambiguous && (err == nil || !strings.Contains(err.Error(), "is ambiguous")):
+			t.Errorf("%q: got %v, %v, want the ambiguity refused", c.text, v, err)
+		case !c.ambiguous && (err != nil || !given || v != c.value):
+			t.Errorf("%q: got %v (given %v), %v, want %v", c.text, v, given, err, c.value)
+		}
+	}
 }
