@@ -197,3 +197,42 @@ func TestCheckViewConditionsMatchAPI(t *testing.T) {
 		t.Errorf("blood-water note shown for an aqueous solution")
 	}
 }
+
+// TestCompareReverseNote: a dialysate inlet above the blood inlet is a
+// valid operating point (the solute then moves into the blood, and the
+// clearances are negative: the model's sign, K = D (CBi - CDi) / CBi), but
+// it is more often two samples swapped; the view says so while it holds,
+// and only then, and its chart shows the negative clearances.
+func TestCompareReverseNote(t *testing.T) {
+	p := openPage(t, "")
+	shown := func() bool {
+		return eval[bool](p, `!document.getElementById('compare-reverse-note').hidden && getComputedStyle(document.getElementById('compare-reverse-note')).display !== 'none'`)
+	}
+	if shown() {
+		t.Fatal("the reverse note shows at the demo values (CBi 1, CDi 0)")
+	}
+	p.reveal("#compare-cdi")
+	p.typeInto("#compare-cdi", "2")
+	if !shown() {
+		t.Error("CDi 2 above the default CBi 1: no note")
+	}
+	if k := eval[string](p, `document.querySelector('#compare-results [data-out="countercurrent.clearance"]').textContent`); !strings.HasPrefix(k, "-") && !strings.HasPrefix(k, "−") {
+		t.Errorf("CDi 2 above CBi 1: counter-current clearance shown as %q, want it negative", k)
+	}
+	// The chart's value axis reaches below 0: the operating points are
+	// inside the plot, apart, and not on its edge.
+	inside := eval[bool](p, `(() => {
+		const svg = document.querySelector('#compare-results svg');
+		const axes = svg.querySelectorAll('line.axis');
+		const top = +axes[0].getAttribute('y1'), bottom = +axes[0].getAttribute('y2');
+		const ys = [...svg.querySelectorAll('circle.point')].map((c) => +c.getAttribute('cy'));
+		return ys.length === 2 && ys.every((y) => y > top + 1 && y < bottom - 1) && Math.abs(ys[0] - ys[1]) > 5;
+	})()`)
+	if !inside {
+		t.Error("CDi 2 above CBi 1: the chart's operating points are not inside its plot")
+	}
+	p.typeInto("#compare-cdi", "0,5")
+	if shown() {
+		t.Error("CDi 0.5 below CBi 1: the note still shows")
+	}
+}

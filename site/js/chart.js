@@ -71,10 +71,12 @@ function ticks(lo, hi, count = 5) {
   return out;
 }
 
-// axisTicks is ticks() with the last tick at or above hi, for a value axis.
-function axisTicks(hi, count = 5) {
-  const t = ticks(0, hi, count);
-  const step = t.length > 1 ? t[1] - t[0] : hi;
+// axisTicks is ticks() with the first tick at or below lo and the last at
+// or above hi, for a value axis.
+function axisTicks(lo, hi, count = 5) {
+  const t = ticks(lo, hi, count);
+  const step = t.length > 1 ? t[1] - t[0] : hi - lo;
+  while (t[0] > lo) t.unshift(Number((t[0] - step).toPrecision(12)));
   while (t[t.length - 1] < hi) t.push(Number((t[t.length - 1] + step).toPrecision(12)));
   return t;
 }
@@ -86,6 +88,16 @@ function tenths(v) {
   const a = Math.abs(t);
   const text = `${(a - (a % 10)) / 10}.${a % 10}`;
   return t < 0 ? `-${text}` : text;
+}
+
+// smallest returns the smallest value of the lines, at most 0.
+function smallest(lines) {
+  let m = 0;
+  for (const line of lines) {
+    const v = line.values;
+    for (let i = 0; i < v.length; i++) if (v[i] < m) m = v[i];
+  }
+  return m;
 }
 
 // largest returns the largest value of the lines, at least floor.
@@ -150,7 +162,8 @@ function drawLine(node, values, x, scale, path) {
 // [{values, className, label}], ceilings: [{values, label}], point: {x,
 // ys: []}}, where x and values are array-likes of numbers. Optional: a
 // series may have its own x; xRange [min, max] and yMax fix the axes
-// (values beyond yMax are clipped at the top); verticals [{x, label}] draws
+// (values beyond yMax are clipped at the top; without yMax, the value axis
+// reaches below 0 when a line does); verticals [{x, label}] draws
 // vertical ceiling lines labelled at the top; endLabels: false leaves out
 // the labels at the lines' right ends (and their margin).
 export function drawChart(svg, spec) {
@@ -163,20 +176,25 @@ export function drawChart(svg, spec) {
   const xs = spec.x;
   const ceilings = spec.ceilings ?? [];
   const [xMin, xMax] = spec.xRange ?? [xs[0], xs[xs.length - 1]];
-  const yTicks = axisTicks(spec.yMax ?? largest([...spec.series, ...ceilings], 1) * 1.02);
+  // The value axis starts at 0, or below it when a line goes negative
+  // (clearance with the dialysate inlet above the blood inlet).
+  const lines = [...spec.series, ...ceilings];
+  const low = spec.yMax === undefined ? smallest(lines) * 1.02 : 0;
+  const yTicks = axisTicks(low, spec.yMax ?? largest(lines, low < 0 ? 0 : 1) * 1.02);
+  const yMin = yTicks[0];
   const yMax = yTicks[yTicks.length - 1];
   const px = (x) => left + ((x - xMin) / (xMax - xMin)) * plotW;
-  const py = (y) => top + plotH - (y / yMax) * plotH;
+  const py = (y) => top + plotH - ((Math.min(Math.max(y, yMin), yMax) - yMin) / (yMax - yMin)) * plotH;
 
   const xTicks = ticks(xMin, xMax);
   if (!unchanged(chart, 'frame', [left, top, plotW, plotH, xMin, xMax, yTicks, xTicks, spec.xLabel, spec.yLabel].join('|'))) {
     drawFrame(layers, { left, top, plotW, plotH, px, py, yTicks, xTicks, xLabel: spec.xLabel, yLabel: spec.yLabel });
   }
 
-  const scale = { left, top, plotW, plotH, xMin, xMax, yMax }; // all that places a point
+  const scale = { left, top, plotW, plotH, xMin, xMax, yMin, yMax }; // all that places a point
   const path = (values, x) => {
     let d = '';
-    for (let i = 0; i < values.length; i++) d += `${i ? 'L' : 'M'}${tenths(px(x[i]))} ${tenths(py(Math.min(values[i], yMax)))}`;
+    for (let i = 0; i < values.length; i++) d += `${i ? 'L' : 'M'}${tenths(px(x[i]))} ${tenths(py(values[i]))}`;
     return d;
   };
   const labels = [];
@@ -226,6 +244,6 @@ export function drawChart(svg, spec) {
   if (point) {
     const x = px(point.x);
     set(pointLine[0], { class: 'point-line', x1: x, x2: x, y1: top, y2: top + plotH });
-    point.ys.forEach((y, i) => set(points[i], { class: 'point', cx: x, cy: py(Math.min(y, yMax)), r: 6 }));
+    point.ys.forEach((y, i) => set(points[i], { class: 'point', cx: x, cy: py(y), r: 6 }));
   }
 }

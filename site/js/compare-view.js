@@ -36,6 +36,7 @@ export function mountCompare(root, engine) {
   const caption = root.querySelector('figcaption');
   const axisButtons = root.querySelectorAll('[data-axis]');
   const bloodNote = root.querySelector('#compare-blood-note');
+  const reverseNote = root.querySelector('#compare-reverse-note');
   let axis = 'qb';
   let last = null;
 
@@ -79,6 +80,8 @@ export function mountCompare(root, engine) {
     last = response;
     renderOutputs(results, response);
     if (bloodNote.hidden === Boolean(response.input.blood)) bloodNote.hidden = !response.input.blood;
+    const reverse = response.input.cdi > response.input.cbi;
+    if (reverseNote.hidden === reverse) reverseNote.hidden = !reverse;
     draw();
   }
 
