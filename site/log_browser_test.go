@@ -702,6 +702,14 @@ func TestLogEveryView(t *testing.T) {
 		t.Fatalf("%d records for %d views", len(recs), len(names))
 	}
 	p.reload()
+	// Each record's line of inputs shows its figures, a field check's
+	// (kept one level down, under its part) as well as the others'.
+	p.openLog()
+	for i, text := range eval[[]string](p, `[...document.querySelectorAll('[data-log-list] .record-inputs')].map((e) => e.textContent)`) {
+		if !strings.Contains(text, "qb ") {
+			t.Errorf("the %s record's inputs read %q, without its QB", names[len(names)-1-i], text)
+		}
+	}
 	for i := range names {
 		p.openLog()
 		// Newest first: record i is view names[len-1-i].

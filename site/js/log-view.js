@@ -76,11 +76,19 @@ export function mountLog(root, ctx) {
     storage.textContent = parts.join(' ');
   }
 
+  // summary lists a record's inputs that were filled in: its own, then
+  // those one level down (a field check keeps each form's texts under its
+  // name: inputs.clearance, inputs.blood, ...), named after that level
+  // unless it is the part shown.
   function summary(inputs) {
-    return Object.entries(inputs)
-      .filter(([, v]) => v !== '' && v !== null && typeof v !== 'object')
-      .map(([k, v]) => `${k} ${v}`)
-      .join(' · ');
+    const filled = ([, v]) => v !== '' && v !== null && typeof v !== 'object';
+    const out = Object.entries(inputs).filter(filled).map(([k, v]) => `${k} ${v}`);
+    for (const [name, v] of Object.entries(inputs)) {
+      if (!v || typeof v !== 'object' || Array.isArray(v)) continue;
+      const prefix = name === inputs.part ? '' : `${name} `;
+      out.push(...Object.entries(v).filter(filled).map(([k, x]) => `${prefix}${k} ${x}`));
+    }
+    return out.join(' · ');
   }
 
   function item(record) {
