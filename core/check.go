@@ -95,27 +95,27 @@ func (m Measurement) Validate() error {
 	}
 	switch {
 	case m.CBo > m.CBi:
-		return fieldErrorf("cbo", "is above the blood inlet cbi (%g > %g): blood cannot leave with more solute than it brought; check that the samples are not swapped", m.CBo, m.CBi)
+		return fieldErrorf("cbo", "is above the blood inlet CBi (%g > %g): blood cannot leave with more solute than it brought; check that the samples are not swapped", m.CBo, m.CBi)
 	case m.CBo == m.CBi && m.QF == 0:
-		return fieldErrorf("cbo", "equals the blood inlet cbi with no ultrafiltration: there is no removal to measure; check the samples and that dialysate flows")
+		return fieldErrorf("cbo", "equals the blood inlet CBi with no ultrafiltration: there is no removal to measure; check the samples and that dialysate flows")
 	}
 	if err := checkConcentration("cdi", m.CDi, false); err != nil {
 		return err
 	}
 	if m.CDi >= m.CBi {
-		return fieldErrorf("cdi", "must be below the blood inlet cbi (%g >= %g): nothing can diffuse out of the blood", m.CDi, m.CBi)
+		return fieldErrorf("cdi", "must be below the blood inlet CBi (%g >= %g): nothing can diffuse out of the blood", m.CDi, m.CBi)
 	}
 	if m.CBo < m.CDi {
-		return fieldErrorf("cbo", "is below the dialysate inlet cdi (%g < %g): blood cannot be cleared below the fresh dialysate", m.CBo, m.CDi)
+		return fieldErrorf("cbo", "is below the dialysate inlet CDi (%g < %g): blood cannot be cleared below the fresh dialysate", m.CBo, m.CDi)
 	}
 	if err := checkConcentration("cdo", m.CDo, false); err != nil {
 		return err
 	}
 	switch {
 	case m.CDo < m.CDi:
-		return fieldErrorf("cdo", "is below the dialysate inlet cdi (%g < %g): dialysate cannot lose solute while the blood loses it", m.CDo, m.CDi)
+		return fieldErrorf("cdo", "is below the dialysate inlet CDi (%g < %g): dialysate cannot lose solute while the blood loses it", m.CDo, m.CDi)
 	case m.CDo > m.CBi:
-		return fieldErrorf("cdo", "is above the blood inlet cbi (%g > %g): dialysate cannot become richer than the blood entering; check that the samples are not swapped", m.CDo, m.CBi)
+		return fieldErrorf("cdo", "is above the blood inlet CBi (%g > %g): dialysate cannot become richer than the blood entering; check that the samples are not swapped", m.CDo, m.CBi)
 	}
 	return nil
 }
@@ -131,7 +131,7 @@ func checkUltrafiltration(qf, qb float64) error {
 	case qf > MaxFlow:
 		return fieldErrorf("qf", "is beyond any dialysis flow (maximum %g mL/min, got %g)", MaxFlow, qf)
 	case qb != 0 && qf >= qb:
-		return fieldErrorf("qf", "must be below the blood flow qb (%g >= %g mL/min)", qf, qb)
+		return fieldErrorf("qf", "must be below the blood flow QB (%g >= %g mL/min)", qf, qb)
 	}
 	return nil
 }

@@ -135,9 +135,9 @@ func ConductivityDialysance(lv Levels, st DialysanceSetting) (DialysanceResult, 
 	minimum := resolutionSteps * res
 	switch {
 	case in == 0:
-		return DialysanceResult{}, fieldErrorf("cdi2", "equals the level 1 inlet cdi1 (%g): two different inlet levels are needed", lv.Cdi2)
+		return DialysanceResult{}, fieldErrorf("cdi2", "equals the level 1 inlet (%g): two different inlet levels are needed", lv.Cdi2)
 	case math.Abs(in) < minimum*(1-decimalSlack):
-		return DialysanceResult{}, fieldErrorf("cdi2", "is too close to cdi1 to resolve: the step %g is below %g, 20 times the meter resolution %g; make the inlet step larger", math.Abs(in), minimum, res)
+		return DialysanceResult{}, fieldErrorf("cdi2", "is too close to the level 1 inlet to resolve: the step %g is below %g, 20 times the meter resolution %g; make the inlet step larger", math.Abs(in), minimum, res)
 	}
 	r := out / in
 	switch {

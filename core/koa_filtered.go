@@ -32,7 +32,7 @@ func KoAForClearance(field string, a Arrangement, op Operating, k float64) (floa
 		return 0, err
 	}
 	if op.CDi >= op.CBi {
-		return 0, fieldErrorf("cdi", "must be below cbi for a KoA to follow from a clearance (got %g >= %g)", op.CDi, op.CBi)
+		return 0, fieldErrorf("cdi", "must be below the blood inlet CBi for a KoA to follow from a clearance (got %g >= %g)", op.CDi, op.CBi)
 	}
 	inv := invertClearance(a, op.model(), k, start{})
 	switch inv.reach {
