@@ -74,34 +74,49 @@ const routineRequestForFastPath = `{"qb":300,"qd":500,"koa":800}`
 // the cases of every entry and compare's own, its valid request and
 // examples) both ways.
 func TestFastPathCatalogue(t *testing.T) {
+	bodiesBothWays(t, catalogueBodies(t, "compare"), sameBothWays)
+}
+
+// bodiesBothWays sends every body both ways with same, and asks that the
+// fast decoder took at least a third of them. Not a speed check: a guard
+// that the comparison covers the fast path at all (most of the
+// catalogue's cases are the page's requests with one bad value).
+func bodiesBothWays(t *testing.T, bodies [][]byte, same func(testing.TB, []byte) bool) {
+	t.Helper()
+	fast := 0
+	for _, b := range bodies {
+		if same(t, b) {
+			fast++
+		}
+	}
+	if fast < len(bodies)/3 {
+		t.Errorf("the fast decoder took %d of %d requests, want at least a third", fast, len(bodies))
+	}
+	t.Logf("%d requests, %d by the fast decoder", len(bodies), fast)
+}
+
+// catalogueBodies returns the request bodies of the bad-input catalogue
+// (testdata/bad-input.json) for entry: its valid request, its examples,
+// and the cases of every entry and its own.
+func catalogueBodies(t *testing.T, entry string) [][]byte {
+	t.Helper()
 	c, err := badinput.Load()
 	if err != nil {
 		t.Fatal(err)
 	}
-	section := c.Entries["compare"]
+	section := c.Entries[entry]
 	bodies := [][]byte{section.Valid}
 	for _, ex := range section.Examples {
 		bodies = append(bodies, ex)
 	}
-	cases, err := c.Cases("compare")
+	cases, err := c.Cases(entry)
 	if err != nil {
 		t.Fatal(err)
 	}
 	for _, cs := range cases {
 		bodies = append(bodies, cs.Body)
 	}
-	fast := 0
-	for _, b := range bodies {
-		if sameBothWays(t, b) {
-			fast++
-		}
-	}
-	// Not a speed check: a guard that the comparison covers the fast path
-	// at all (most of compare's cases are flat requests with one bad value).
-	if fast < len(bodies)/3 {
-		t.Errorf("the fast path took %d of the catalogue's %d requests, want at least a third", fast, len(bodies))
-	}
-	t.Logf("%d requests, %d by the fast decoder", len(bodies), fast)
+	return bodies
 }
 
 // TestFastPathCorpora sends the committed fuzz inputs of every target of

@@ -47,8 +47,10 @@ var (
 	sweepFlat     = [...]string{"points", "koa_max"}
 )
 
-// decodeFast reads the page's shape of size request into r and reports
-// whether it did; r is left as it was when not. It takes: an object of
+// decodeFast reads the page's shape of size request into r, which must be
+// zero, and reports whether it did; when not, r may hold part of the
+// request (decode then reads it into a value of its own), as r is filled
+// as it is read, as compare's decodeFast fills its request. It takes: an object of
 // the members of sizeFlat, each at most once, whose numbers are JSON
 // numbers, strings of printable ASCII without escapes, or null (as in
 // compare's flat request); flow a string (text); sweep, reference and
@@ -64,10 +66,9 @@ func (r *SizeRequest) decodeFast(request []byte) bool {
 		return false
 	}
 	d := fastDecoder{s: request}
-	var out SizeRequest
 	numbers := [...]*Number{
-		&out.TargetClearance, &out.QB, &out.QD, nil, &out.QF, &out.Sieving, &out.Hct, &out.PlasmaWater, &out.RedCellWater,
-		&out.K0, &out.MarginPercent,
+		&r.TargetClearance, &r.QB, &r.QD, nil, &r.QF, &r.Sieving, &r.Hct, &r.PlasmaWater, &r.RedCellWater,
+		&r.K0, &r.MarginPercent,
 	}
 	var o fastObject
 	for {
@@ -76,30 +77,26 @@ func (r *SizeRequest) decodeFast(request []byte) bool {
 		case !ok:
 			return false
 		case k < 0:
-			if d.space() != len(request) {
-				return false
-			}
-			*r = out
-			return true
+			return d.space() == len(request)
 		case k == sizeFlow:
-			if out.Flow, ok = d.text(); !ok {
+			if r.Flow, ok = d.text(); !ok {
 				return false
 			}
 		case k == sizeSweep:
-			out.Sweep = new(SizeSweepRequest)
-			ok = d.numbers(sweepFlat[:], &out.Sweep.Points, &out.Sweep.KoAMax)
+			r.Sweep = new(SizeSweepRequest)
+			ok = d.numbers(sweepFlat[:], &r.Sweep.Points, &r.Sweep.KoAMax)
 		case k == sizeReference:
-			out.Reference = new(ReferenceRequest)
-			ok = d.numbers(referenceFlat[:], &out.Reference.KoA, &out.Reference.AreaM2)
+			r.Reference = new(ReferenceRequest)
+			ok = d.numbers(referenceFlat[:], &r.Reference.KoA, &r.Reference.AreaM2)
 		case k == sizeCurrentFilter:
-			out.CurrentFilter = new(FilterRequest)
-			ok = d.filter(out.CurrentFilter)
+			r.CurrentFilter = new(FilterRequest)
+			ok = d.filter(r.CurrentFilter)
 		case k == sizeQDRange:
-			out.QDRange, ok = d.pair()
+			r.QDRange, ok = d.pair()
 		case k == sizeQBRange:
-			out.QBRange, ok = d.pair()
+			r.QBRange, ok = d.pair()
 		case k == sizeFilters:
-			out.Filters, ok = d.filters()
+			r.Filters, ok = d.filters()
 		default:
 			ok = d.number(numbers[k], true)
 		}

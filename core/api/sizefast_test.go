@@ -9,8 +9,6 @@ import (
 	"strconv"
 	"strings"
 	"testing"
-
-	"clearkit/internal/badinput"
 )
 
 // The fast decoder of size (sizefast.go) must leave every answer as the
@@ -88,35 +86,11 @@ func sameRequest(a, b SizeRequest) bool {
 // (testdata/bad-input.json: the cases of every entry and size's own, its
 // valid request and examples) and sizeRequests both ways.
 func TestSizeFastPathCatalogue(t *testing.T) {
-	c, err := badinput.Load()
-	if err != nil {
-		t.Fatal(err)
-	}
-	section := c.Entries["size"]
-	bodies := [][]byte{section.Valid}
-	for _, ex := range section.Examples {
-		bodies = append(bodies, ex)
-	}
-	cases, err := c.Cases("size")
-	if err != nil {
-		t.Fatal(err)
-	}
-	for _, cs := range cases {
-		bodies = append(bodies, cs.Body)
-	}
+	bodies := catalogueBodies(t, "size")
 	for _, r := range sizeRequests() {
 		bodies = append(bodies, []byte(r))
 	}
-	fast := 0
-	for _, b := range bodies {
-		if sameSizeBothWays(t, b) {
-			fast++
-		}
-	}
-	if fast < len(bodies)/3 {
-		t.Errorf("the fast decoder took %d of %d requests, want at least a third", fast, len(bodies))
-	}
-	t.Logf("%d requests, %d by the fast decoder", len(bodies), fast)
+	bodiesBothWays(t, bodies, sameSizeBothWays)
 }
 
 // TestSizeFastPathRandom sends seeded random size requests both ways:
